@@ -1,0 +1,37 @@
+import { DataTypes, Model, type Sequelize } from 'sequelize';
+import { attributes, ref, syncedFields, type ColumnSpec } from './columns';
+import type { SyncedRecord } from './synced';
+
+export const SITE_KINDS = ['camp', 'village', 'school', 'ward', 'clinic', 'other'] as const;
+export type SiteKind = (typeof SITE_KINDS)[number];
+
+export const siteColumns: ColumnSpec = {
+  ...syncedFields,
+  outbreakId: ref('outbreaks'),
+  /** The team whose field officers record this site; null while unassigned. */
+  teamId: ref('teams', { allowNull: true, onDelete: 'SET NULL' }),
+  name: { type: DataTypes.STRING(120), allowNull: false },
+  kind: { type: DataTypes.STRING(16), allowNull: false, defaultValue: 'other' },
+  /** People living or staying at the site. */
+  population: { type: DataTypes.INTEGER, allowNull: false },
+};
+
+export class Site extends Model implements SyncedRecord {
+  declare id: string;
+  declare version: number;
+  declare changeSeq: number;
+  declare createdAt: Date;
+  declare updatedAt: Date;
+  declare deletedAt: Date | null;
+  declare updatedBy: string | null;
+  declare deviceId: string | null;
+  declare outbreakId: string;
+  declare teamId: string | null;
+  declare name: string;
+  declare kind: SiteKind;
+  declare population: number;
+}
+
+export function initSite(sequelize: Sequelize) {
+  Site.init(attributes(siteColumns), { sequelize, tableName: 'sites', modelName: 'Site', underscored: true });
+}
