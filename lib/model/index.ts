@@ -30,3 +30,17 @@ export type {
 export { scenarioInputSchema, MAX_DAYS, MAX_STEPS } from '../validation/scenario';
 
 // --- estimation (lib/model/estimate) ---
+// growthRate(incidence, window) is exported as growthRateFromCounts here because the name growthRate
+// is taken above by the engine's summary helper; '@/lib/model/estimate' exports it as growthRate.
+export { growthRate as growthRateFromCounts, R0FromGrowth, doublingTimeOf, doublingIntervalOf } from './estimate/growth';
+export type { GrowthWindow, GrowthOptions, GrowthResult, GrowthModel } from './estimate/growth';
+export { estimateRt, discretiseSerialInterval } from './estimate/rt';
+export type { RtOptions, RtEstimate, SerialIntervalSpec, SerialIntervalDiscretisation } from './estimate/rt';
+export { fitScenario, FIT_PARAMS } from './estimate/fit';
+export type {
+  FitInput, FitOptions, FitResult, FitFlag, FitFlagCode, FitSample, FitParamName, FitIntervalName,
+  FitObservation, FitLikelihood, ResolvedFitInput,
+} from './estimate/fit';
+export { fitCurve, forecastFromFit } from './estimate/forecast';
+export type { FitCurve, ForecastBase, ForecastResult } from './estimate/forecast';
+export { gammaQuantile, chiSquareQuantile, normalQuantile } from './estimate/special';
