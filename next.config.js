@@ -17,7 +17,7 @@ const nextConfig = {
   distDir: process.env.NEXT_DIST_DIR || '.next',
   generateBuildId: async () => BUILD_ID,
   // sqlite3 is a native addon and Sequelize loads dialects dynamically: keep both out of the bundle.
-  serverExternalPackages: ['sqlite3', 'sequelize', 'smtp-server', 'nodemailer'],
+  serverExternalPackages: ['sqlite3', 'sequelize', 'umzug', 'smtp-server', 'nodemailer'],
   // Types are checked once by `npm run typecheck` (part of `npm test`), not again by every build.
   typescript: { ignoreBuildErrors: true },
   env: { NEXT_PUBLIC_BUILD_ID: BUILD_ID },

@@ -1,9 +1,8 @@
 import { DataTypes, Model, type Sequelize } from 'sequelize';
 import { attributes, ref, syncedFields, type ColumnSpec } from './columns';
 import type { SyncedRecord } from './synced';
+import type { SiteKind } from '@/lib/validation/outbreak';
 
-export const SITE_KINDS = ['camp', 'village', 'school', 'ward', 'clinic', 'other'] as const;
-export type SiteKind = (typeof SITE_KINDS)[number];
 
 export const siteColumns: ColumnSpec = {
   ...syncedFields,

@@ -1,0 +1,18 @@
+import type { Metadata } from 'next';
+import { getActor } from '@/lib/auth/session';
+import { authorize } from '@/lib/auth/permissions';
+import { listOutbreaksForActor, listSitesByOutbreak, listTeamsByOutbreak } from '@/lib/db/outbreaks';
+import { ManageOutbreaks } from '@/components/manage/manage-outbreaks';
+
+export const metadata: Metadata = { title: 'Outbreaks & sites' };
+export const dynamic = 'force-dynamic';
+
+export default async function ManagePage() {
+  const actor = await getActor();
+  authorize(actor, 'outbreak:manage');
+  const outbreaks = await listOutbreaksForActor(actor);
+  const details = await Promise.all(
+    outbreaks.map(async (o) => ({ outbreak: o, teams: await listTeamsByOutbreak(actor, o.id), sites: await listSitesByOutbreak(actor, o.id) })),
+  );
+  return <ManageOutbreaks initial={details} />;
+}

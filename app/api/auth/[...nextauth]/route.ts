@@ -1,0 +1,8 @@
+import NextAuth from 'next-auth';
+import { authOptions } from '@/lib/auth/options';
+
+export const runtime = 'nodejs';
+export const dynamic = 'force-dynamic';
+
+const handler = NextAuth(authOptions);
+export { handler as GET, handler as POST };

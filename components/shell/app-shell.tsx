@@ -1,0 +1,143 @@
+'use client';
+import Link from 'next/link';
+import { usePathname } from 'next/navigation';
+import { Suspense, useState, type ReactNode } from 'react';
+import { signOut } from 'next-auth/react';
+import { HOME, NAVIGATION, navHref } from '@/lib/auth/navigation';
+import { ROLE_LABEL } from '@/lib/auth/roles';
+import { useMe, forgetMe } from '@/lib/data/use-me';
+import { useOutbreaks } from '@/lib/data/hooks';
+import { useOutbreakId } from '@/lib/data/use-outbreak-id';
+import { useUiStore } from '@/lib/stores/ui';
+import { useConnectivity } from '@/lib/stores/connectivity';
+import { StatusIndicator } from './status-indicator';
+
+function OutbreakSwitcher() {
+  const { outbreaks } = useOutbreaks();
+  const current = useOutbreakId();
+  const setOutbreak = useUiStore((s) => s.setOutbreak);
+  if (!outbreaks.length) return null;
+  return (
+    <label className="flex items-center gap-2 text-sm">
+      <span className="sr-only md:not-sr-only">Outbreak</span>
+      <select
+        data-testid="outbreak-switcher"
+        className="min-h-touch max-w-48 rounded-lg border border-white/40 bg-accent-dark px-2 text-white"
+        value={current ?? ''}
+        onChange={(e) => {
+          setOutbreak(e.target.value);
+          const url = new URL(window.location.href);
+          url.searchParams.set('outbreak', e.target.value);
+          window.location.assign(url.toString());
+        }}
+      >
+        {!current && <option value="">Choose…</option>}
+        {outbreaks.map((o) => (
+          <option key={o.id} value={o.id}>{o.name}</option>
+        ))}
+      </select>
+    </label>
+  );
+}
+
+function UserMenu() {
+  const { me, fromCache } = useMe();
+  const outboxSize = useConnectivity((s) => s.outboxSize);
+  const [open, setOpen] = useState(false);
+  if (!me) {
+    return <Link href="/signin" className="min-h-touch rounded-lg bg-white px-3 py-2 font-bold text-accent no-underline">Sign in</Link>;
+  }
+  const doSignOut = async () => {
+    if (outboxSize > 0 && !window.confirm(`${outboxSize} change(s) have not been synced yet. Sign out anyway? They stay on this device.`)) return;
+    forgetMe();
+    await signOut({ callbackUrl: '/signin' });
+  };
+  return (
+    <div className="relative">
+      <button
+        type="button"
+        data-testid="user-menu"
+        aria-expanded={open}
+        onClick={() => setOpen((v) => !v)}
+        className="flex min-h-touch items-center gap-2 rounded-lg border border-white/40 px-3 text-left text-sm"
+      >
+        <span className="font-bold">{me.name}</span>
+        <span data-testid="user-role" className="rounded bg-white/20 px-1">{ROLE_LABEL[me.role]}</span>
+        {fromCache && <span title="Shown from this device while the server is unreachable">(offline)</span>}
+      </button>
+      {open && (
+        <div className="absolute right-0 z-20 mt-1 w-56 rounded-lg border border-line bg-panel p-2 text-ink shadow-lg">
+          <p className="px-2 py-1 text-sm text-ink/70">{me.email}</p>
+          <button type="button" onClick={doSignOut} className="min-h-touch w-full rounded px-2 text-left font-bold hover:bg-paper">
+            Sign out
+          </button>
+        </div>
+      )}
+    </div>
+  );
+}
+
+function Nav() {
+  const { me } = useMe();
+  const outbreakId = useOutbreakId();
+  const pathname = usePathname();
+  if (!me) return null;
+  return (
+    <nav aria-label="Main" className="no-print border-b border-line bg-panel">
+      <ul className="mx-auto flex max-w-6xl gap-1 overflow-x-auto px-2">
+        {NAVIGATION[me.role].map((n) => {
+          const active = pathname === n.href;
+          return (
+            <li key={n.href}>
+              <Link
+                href={navHref(n, outbreakId)}
+                aria-current={active ? 'page' : undefined}
+                className={`flex min-h-touch items-center whitespace-nowrap border-b-4 px-3 font-bold no-underline ${active ? 'border-accent text-accent' : 'border-transparent text-ink hover:border-line'}`}
+              >
+                {n.label}
+              </Link>
+            </li>
+          );
+        })}
+      </ul>
+    </nav>
+  );
+}
+
+function Brand() {
+  const { me } = useMe();
+  return (
+    <Link href={me ? HOME[me.role] : '/'} className="flex items-center gap-2 text-xl font-bold text-white no-underline">
+      <svg aria-hidden width="28" height="28" viewBox="0 0 32 32">
+        <path d="M2 24 C 8 24, 10 6, 16 6 S 24 22, 30 22" stroke="#F7F4EC" strokeWidth="3.2" fill="none" strokeLinecap="round" />
+      </svg>
+      Ebbcast
+    </Link>
+  );
+}
+
+/** The header (brand, outbreak, connectivity, user) and role navigation around every screen. */
+export function AppShell({ children }: { children: ReactNode }) {
+  return (
+    <div className="flex min-h-screen flex-col">
+      <header className="no-print bg-accent text-white">
+        <div className="mx-auto flex max-w-6xl flex-wrap items-center justify-between gap-2 px-3 py-2">
+          <Brand />
+          <div className="flex flex-wrap items-center gap-2">
+            <Suspense fallback={null}>
+              <OutbreakSwitcher />
+            </Suspense>
+            <StatusIndicator />
+            <UserMenu />
+          </div>
+        </div>
+      </header>
+      <Suspense fallback={null}>
+        <Nav />
+      </Suspense>
+      <main className="mx-auto w-full max-w-6xl flex-1 px-3 py-4">
+        <Suspense fallback={<p>Loading…</p>}>{children}</Suspense>
+      </main>
+    </div>
+  );
+}

@@ -1,0 +1,144 @@
+import { createHash } from 'node:crypto';
+import { Op, type Transaction, type WhereOptions } from 'sequelize';
+import { LedgerEntry } from '@/models';
+import { db, writeTx } from './connection';
+
+export interface LedgerInput {
+  kind: string;
+  userId?: string | null;
+  deviceId?: string | null;
+  outbreakId?: string | null;
+  counts?: Record<string, number> | null;
+  /** Milliseconds the action took. */
+  durationMs?: number | null;
+  detail?: Record<string, unknown> | null;
+}
+
+export interface LedgerRow {
+  id: number;
+  at: string;
+  kind: string;
+  userId: string | null;
+  deviceId: string | null;
+  outbreakId: string | null;
+  counts: Record<string, number> | null;
+  durationMs: number | null;
+  detail: Record<string, unknown> | null;
+  prevHash: string;
+  hash: string;
+}
+
+const GENESIS = '0'.repeat(64);
+
+function rowHash(prevHash: string, r: Omit<LedgerRow, 'id' | 'hash' | 'prevHash'>): string {
+  const canonical = JSON.stringify([prevHash, r.at, r.kind, r.userId, r.deviceId, r.outbreakId, r.counts, r.durationMs, r.detail]);
+  return createHash('sha256').update(canonical).digest('hex');
+}
+
+function toRow(e: LedgerEntry): LedgerRow {
+  return {
+    id: e.id,
+    at: new Date(e.at).toISOString(),
+    kind: e.kind,
+    userId: e.userId,
+    deviceId: e.deviceId,
+    outbreakId: e.outbreakId,
+    counts: e.counts ? JSON.parse(e.counts) : null,
+    durationMs: e.durationMs,
+    detail: e.detail ? JSON.parse(e.detail) : null,
+    prevHash: e.prevHash,
+    hash: e.hash,
+  };
+}
+
+/**
+ * Appends one ledger row inside the caller's write transaction (so the row exists exactly when
+ * the action it records was committed). The chain hash covers the previous row's hash.
+ */
+export async function appendLedger(t: Transaction, input: LedgerInput): Promise<LedgerRow> {
+  const last = await LedgerEntry.findOne({ order: [['id', 'DESC']], transaction: t, attributes: ['hash'] });
+  const prevHash = last?.hash ?? GENESIS;
+  const body = {
+    at: new Date().toISOString(),
+    kind: input.kind,
+    userId: input.userId ?? null,
+    deviceId: input.deviceId ?? null,
+    outbreakId: input.outbreakId ?? null,
+    counts: input.counts ?? null,
+    durationMs: input.durationMs == null ? null : Math.round(input.durationMs),
+    detail: input.detail ?? null,
+  };
+  const hash = rowHash(prevHash, body);
+  const e = await LedgerEntry.create(
+    {
+      ...body,
+      at: new Date(body.at),
+      counts: body.counts ? JSON.stringify(body.counts) : null,
+      detail: body.detail ? JSON.stringify(body.detail) : null,
+      prevHash,
+      hash,
+    },
+    { transaction: t },
+  );
+  return toRow(e);
+}
+
+/** Appends a ledger row in a transaction of its own (sign-ins, mail). */
+export function recordLedger(input: LedgerInput): Promise<LedgerRow> {
+  return writeTx((t) => appendLedger(t, input));
+}
+
+export interface LedgerFilter {
+  userId?: string;
+  deviceId?: string;
+  outbreakId?: string;
+  kind?: string;
+  /** ISO date-times, inclusive. */
+  from?: string;
+  to?: string;
+  /** Limit the rows to these outbreaks (the reader's scope); rows with no outbreak stay visible. */
+  outbreakIds?: string[];
+  limit?: number;
+  offset?: number;
+}
+
+export async function listLedger(f: LedgerFilter = {}): Promise<{ rows: LedgerRow[]; total: number }> {
+  await db();
+  const where: WhereOptions = {};
+  const and: WhereOptions[] = [];
+  if (f.userId) and.push({ userId: f.userId });
+  if (f.deviceId) and.push({ deviceId: f.deviceId });
+  if (f.kind) and.push({ kind: f.kind });
+  if (f.outbreakId) and.push({ outbreakId: f.outbreakId });
+  if (f.outbreakIds) and.push({ [Op.or]: [{ outbreakId: { [Op.in]: f.outbreakIds } }, { outbreakId: null }] });
+  if (f.from) and.push({ at: { [Op.gte]: new Date(f.from) } });
+  if (f.to) and.push({ at: { [Op.lte]: new Date(f.to) } });
+  if (and.length) Object.assign(where, { [Op.and]: and });
+  const { rows, count } = await LedgerEntry.findAndCountAll({
+    where,
+    order: [['id', 'DESC']],
+    limit: Math.min(f.limit ?? 200, 5000),
+    offset: f.offset ?? 0,
+  });
+  return { rows: rows.map(toRow), total: count };
+}
+
+/** Recomputes the hash chain. `ok: false` names the first row whose hash or link is wrong. */
+export async function verifyLedger(): Promise<{ ok: boolean; rows: number; firstBadId?: number }> {
+  await db();
+  let prev = GENESIS;
+  let n = 0;
+  let lastId = 0;
+  for (;;) {
+    const batch = await LedgerEntry.findAll({ where: { id: { [Op.gt]: lastId } }, order: [['id', 'ASC']], limit: 1000 });
+    if (!batch.length) break;
+    for (const e of batch) {
+      const r = toRow(e);
+      if (r.prevHash !== prev || rowHash(prev, r) !== r.hash) return { ok: false, rows: n, firstBadId: r.id };
+      prev = r.hash;
+      n++;
+      lastId = r.id;
+    }
+  }
+  return { ok: true, rows: n };
+}

@@ -1,0 +1,31 @@
+import type { Sequelize } from 'sequelize';
+import { initUser, User } from './user';
+import { initOutbreak, Outbreak } from './outbreak';
+import { initTeam, Team, TeamMembership, OutbreakMember } from './team';
+import { initSite, Site } from './site';
+import { initLedger, LedgerEntry, ServerCounter } from './ledger-entry';
+
+export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter };
+
+/**
+ * Initialises every model on a connection and declares the associations. Add a new model here
+ * (init + associations) and its table in a new file under ./migrations.
+ */
+export function initModels(sequelize: Sequelize): void {
+  initUser(sequelize);
+  initOutbreak(sequelize);
+  initTeam(sequelize);
+  initSite(sequelize);
+  initLedger(sequelize);
+
+  Outbreak.hasMany(Team, { foreignKey: 'outbreakId' });
+  Team.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
+  Outbreak.hasMany(Site, { foreignKey: 'outbreakId' });
+  Site.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
+  Team.hasMany(Site, { foreignKey: 'teamId' });
+  Site.belongsTo(Team, { foreignKey: 'teamId' });
+  TeamMembership.belongsTo(Team, { foreignKey: 'teamId' });
+  TeamMembership.belongsTo(User, { foreignKey: 'userId' });
+  OutbreakMember.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
+  OutbreakMember.belongsTo(User, { foreignKey: 'userId' });
+}

@@ -1,0 +1,47 @@
+import { defineConfig, devices } from '@playwright/test';
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+
+const PORT = Number(process.env.E2E_PORT || 3917);
+const baseURL = `http://127.0.0.1:${PORT}`;
+const tmp = process.env.E2E_DATA_DIR || mkdtempSync(path.join(tmpdir(), 'ebbcast-e2e-'));
+process.env.E2E_DATA_DIR = tmp;
+
+export default defineConfig({
+  testDir: 'tests/e2e',
+  timeout: 90_000,
+  expect: { timeout: 15_000 },
+  fullyParallel: false,
+  workers: 1,
+  retries: 0,
+  reporter: [['list']],
+  outputDir: 'test-results',
+  use: {
+    baseURL,
+    ...devices['Desktop Chrome'],
+    viewport: { width: 1024, height: 768 },
+    serviceWorkers: 'allow',
+    launchOptions: {
+      executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+        '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    },
+    trace: 'off',
+    screenshot: 'only-on-failure',
+  },
+  webServer: {
+    command: `node node_modules/next/dist/bin/next start -p ${PORT} -H 127.0.0.1`,
+    url: `${baseURL}/api/health`,
+    reuseExistingServer: false,
+    timeout: 180_000,
+    env: {
+      NEXT_DIST_DIR: process.env.NEXT_DIST_DIR || '.next-test',
+      NEXTAUTH_URL: baseURL,
+      NEXTAUTH_SECRET: 'e2e-secret-not-for-production-0123456789',
+      DATABASE_URL: `file:${path.join(tmp, 'e2e.sqlite')}`,
+      EBBCAST_DATA_DIR: tmp,
+      NEXT_TELEMETRY_DISABLED: '1',
+    },
+  },
+});
