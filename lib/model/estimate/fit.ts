@@ -23,7 +23,7 @@
 import { ModelError } from '../errors';
 import type { ModelKind } from '../types';
 import { nelderMead } from '../optim/nelder-mead';
-import { cholesky, choleskyInverse } from './linalg';
+import { cholesky, choleskyInverse, logNormalDensity } from './linalg';
 import { createRng } from './random';
 import { chiSquareQuantile } from './special';
 import { TrajectoryEvaluator, type FixedStepMethod, type TrajectoryParams } from './trajectory';
@@ -49,6 +49,8 @@ export interface FitOptions {
   intervals?: 'profile' | 'none';
   /** Interval level, fraction; default 0.95. */
   level?: number;
+  /** Cap on criterion evaluations of each Nelder–Mead run of the main fit; default 300·k + 200. */
+  maxEvaluations?: number;
 }
 
 export interface FitInput {
@@ -406,7 +408,7 @@ export function fitScenario(input: FitInput): FitResult {
   // --- main optimisation -------------------------------------------------------------------------
   const x0 = Float64Array.from(names.map((n) => Math.log(problem.q[n])));
   const rng = createRng(seed);
-  const nmMain = { step: 0.3, xTol: 1e-6, fTol: 1e-8, maxEvaluations: 300 * k + 200 };
+  const nmMain = { step: 0.3, xTol: 1e-6, fTol: 1e-8, maxEvaluations: opts.maxEvaluations ?? 300 * k + 200 };
   let best: Optimum = { x: x0, crit: f(x0) };
   let iterations = 0;
   for (let s = 0; s <= restarts; s++) {
@@ -416,7 +418,7 @@ export function fitScenario(input: FitInput): FitResult {
     iterations += res.iterations;
     if (res.fx < best.crit) best = { x: res.x, crit: res.fx };
   }
-  const polish = nelderMead(f, best.x, { step: 0.05, xTol: 1e-8, fTol: 1e-10, maxEvaluations: 400 * k + 200 });
+  const polish = nelderMead(f, best.x, { step: 0.05, xTol: 1e-8, fTol: 1e-10, maxEvaluations: opts.maxEvaluations ?? 400 * k + 200 });
   iterations += polish.iterations;
   if (polish.fx <= best.crit) best = { x: polish.x, crit: polish.fx };
   let converged = polish.converged && Number.isFinite(best.crit);
@@ -447,12 +449,13 @@ export function fitScenario(input: FitInput): FitResult {
   const interval: Partial<Record<FitIntervalName, [number, number]>> = {};
   let moved = false;
   const openEnds: string[] = [];
+  const ridge: Float64Array[] = [];
   if ((opts.intervals ?? 'profile') === 'profile') {
     const profileOf = (c: Float64Array, label: string): [number, number] => {
       const res = profileInterval(problem, best, cov, c, cut, (better) => {
         best = better;
         moved = true;
-      });
+      }, ridge);
       if (res.open[0]) openEnds.push(`${label} (lower)`);
       if (res.open[1]) openEnds.push(`${label} (upper)`);
       return [res.lo, res.hi];
@@ -480,6 +483,7 @@ export function fitScenario(input: FitInput): FitResult {
       if (again.fx < best.crit) best = { x: again.x, crit: again.fx };
       ({ cov, pd } = laplace());
       openEnds.length = 0;
+      ridge.length = 0;
       for (let i = 0; i < k; i++) {
         const c = new Float64Array(k);
         c[i] = 1;
@@ -560,7 +564,7 @@ export function fitScenario(input: FitInput): FitResult {
   }
 
   // --- samples -----------------------------------------------------------------------------------
-  const sampled = nSamples > 0 ? drawSamples(problem, best, cov, nSamples, opts.proposals ?? 3 * nSamples, seed) : { samples: [], ess: 0 };
+  const sampled = nSamples > 0 ? drawSamples(problem, best, cov, ridge, nSamples, opts.proposals ?? 3 * nSamples, seed) : { samples: [], ess: 0 };
   if (nSamples > 0 && sampled.ess < Math.min(100, nSamples / 4)) {
     flags.push({ code: 'samples_degenerate', message: `Only ${Math.round(sampled.ess)} effective parameter draws: the forecast ranges are rough.` });
   }
@@ -607,6 +611,7 @@ function profileInterval(
   c: Float64Array,
   cut: number,
   onBetter: (better: Optimum) => void,
+  ridge: Float64Array[],
 ): { lo: number; hi: number; open: [boolean, boolean] } {
   const k = c.length;
   const f = problem.criterion;
@@ -666,6 +671,8 @@ function profileInterval(
     const g = (v: number) => {
       const p = profile(v, warm);
       warm = p.z;
+      // Keep the profile path (inside the interval and a little beyond) to guide the samples.
+      if (p.crit - critMin <= cut + 2) ridge.push(Float64Array.from(expand(p.z)));
       if (p.crit < critMin - 1e-6) {
         critMin = p.crit;
         const x = Float64Array.from(expand(p.z));
@@ -742,41 +749,71 @@ function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
 }
 
 /**
- * Sampling–importance–resampling: proposals x = x̂ + κ·L·z (z standard normal, LLᵀ = Σ, κ = 1.5),
- * weights ∝ L(x)/q(x) = exp(−(crit(x) − crit_min)/2 + |z|²/2), then systematic resampling.
+ * Sampling–importance–resampling (Rubin 1988) with a mixture proposal in log-parameters: weight 0.3
+ * on N(x̂, 1.5²Σ), the widened Laplace approximation at the optimum, and 0.7 shared by the same
+ * normal centred on each point of the profile paths. Those paths trace the likelihood's ridges,
+ * which the Laplace approximation alone misses when the data stop before the peak (the ridge
+ * β − γ ≈ r is curved in log-parameters). Weights ∝ likelihood / mixture density, then systematic
+ * resampling.
  */
+/** Metropolis moves per particle after resampling. */
+const MOVES = 4;
+
 function drawSamples(
   problem: FitProblem,
   best: Optimum,
   cov: Float64Array,
+  ridge: Float64Array[],
   nSamples: number,
   nProposals: number,
   seed: number,
 ): { samples: FitSample[]; ess: number } {
   const k = problem.k;
   const kappa = 1.5;
-  const L = cholesky(cov, k) ?? new Float64Array(k * k).map((_, i) => (i % (k + 1) === 0 ? 0.2 : 0));
+  const L =
+    cholesky(cov.map((v) => v * kappa * kappa), k) ?? new Float64Array(k * k).map((_, i) => (i % (k + 1) === 0 ? 0.2 : 0));
+  const centres: Float64Array[] = [best.x, ...ridge];
+  const weights = centres.map((_, i) => (ridge.length === 0 ? 1 : i === 0 ? 0.3 : 0.7 / ridge.length));
+  const comps = centres.map((c, i) => ({ weight: weights[i]!, centre: c, L }));
   const rng = createRng(seed ^ 0x5bd1e995);
   const M = Math.max(nProposals, nSamples);
   const xs = new Float64Array(M * k);
   const logw = new Float64Array(M);
   const zv = new Float64Array(k);
+  const work = new Float64Array(k);
   const x = new Float64Array(k);
+  const lq = new Float64Array(comps.length);
+  const crits = new Float64Array(M);
   let maxLw = -Infinity;
   for (let m = 0; m < M; m++) {
-    let zz = 0;
-    for (let i = 0; i < k; i++) {
-      zv[i] = rng.normal();
-      zz += zv[i]! * zv[i]!;
+    // Pick a component, draw from it.
+    let u = rng.next();
+    let ci = 0;
+    while (ci < comps.length - 1 && u > comps[ci]!.weight) {
+      u -= comps[ci]!.weight;
+      ci++;
     }
+    const Lm = comps[ci]!.L;
+    for (let i = 0; i < k; i++) zv[i] = rng.normal();
+    const centre = comps[ci]!.centre;
     for (let i = 0; i < k; i++) {
-      let s = best.x[i]!;
-      for (let j = 0; j <= i; j++) s += kappa * L[i * k + j]! * zv[j]!;
+      let s = centre[i]!;
+      for (let j = 0; j <= i; j++) s += Lm[i * k + j]! * zv[j]!;
       x[i] = s;
       xs[m * k + i] = s;
     }
+    // Mixture density by log-sum-exp.
+    let lmax = -Infinity;
+    for (let c = 0; c < comps.length; c++) {
+      lq[c] = Math.log(comps[c]!.weight) + logNormalDensity(x, comps[c]!.centre, comps[c]!.L, k, work);
+      if (lq[c]! > lmax) lmax = lq[c]!;
+    }
+    let sq = 0;
+    for (let c = 0; c < comps.length; c++) sq += Math.exp(lq[c]! - lmax);
+    const logq = lmax + Math.log(sq);
     const crit = problem.criterion(x);
-    const lw = Number.isFinite(crit) ? -(crit - best.crit) / 2 + zz / 2 : -Infinity;
+    crits[m] = crit;
+    const lw = Number.isFinite(crit) ? -(crit - best.crit) / 2 - logq : -Infinity;
     logw[m] = lw;
     if (lw > maxLw) maxLw = lw;
   }
@@ -790,9 +827,11 @@ function drawSamples(
     sw2 += v * v;
   }
   const ess = sw > 0 ? (sw * sw) / sw2 : 0;
-  const samples: FitSample[] = [];
-  const names = problem.input.estimate;
-  const base = problem.input;
+  // Systematic resampling into particles, then a few random-walk Metropolis moves per particle
+  // (resample–move, Gilks & Berzuini 2001, JRSS B 63:127–146) so that repeated proposals become
+  // distinct draws; each move leaves the target (likelihood × flat prior on log-parameters) invariant.
+  const px = new Float64Array(nSamples * k);
+  const pc = new Float64Array(nSamples);
   const u0 = rng.next() / nSamples;
   let cum = 0;
   let m = 0;
@@ -802,9 +841,34 @@ function drawSamples(
       cum += w[m]!;
       m++;
     }
+    for (let i = 0; i < k; i++) px[s * k + i] = xs[m * k + i]!;
+    pc[s] = crits[m]!;
+  }
+  const Lrw = cholesky(cov.map((v) => (v * 2.38 * 2.38) / k / 4), k);
+  if (Lrw) {
+    for (let s = 0; s < nSamples; s++) {
+      for (let move = 0; move < MOVES; move++) {
+        for (let i = 0; i < k; i++) zv[i] = rng.normal();
+        for (let i = 0; i < k; i++) {
+          let v = px[s * k + i]!;
+          for (let j = 0; j <= i; j++) v += Lrw[i * k + j]! * zv[j]!;
+          x[i] = v;
+        }
+        const crit = problem.criterion(x);
+        if (Number.isFinite(crit) && Math.log(rng.next()) < -(crit - pc[s]!) / 2) {
+          for (let i = 0; i < k; i++) px[s * k + i] = x[i]!;
+          pc[s] = crit;
+        }
+      }
+    }
+  }
+  const samples: FitSample[] = [];
+  const names = problem.input.estimate;
+  const base = problem.input;
+  for (let s = 0; s < nSamples; s++) {
     const d: FitSample = { beta: base.params.beta, gamma: base.params.gamma, I0: base.initial.I };
     if (base.model === 'SEIR') d.sigma = base.params.sigma;
-    for (let i = 0; i < k; i++) d[names[i]!] = Math.exp(xs[m * k + i]!);
+    for (let i = 0; i < k; i++) d[names[i]!] = Math.exp(px[s * k + i]!);
     samples.push(d);
   }
   return { samples, ess };

@@ -38,3 +38,20 @@ export function choleskyInverse(L: Float64Array, k: number): Float64Array {
   }
   return inv;
 }
+
+/**
+ * log density of N(mean, LLᵀ) at x, with L the Cholesky factor; `work` is scratch of length k.
+ */
+export function logNormalDensity(x: ArrayLike<number>, mean: ArrayLike<number>, L: Float64Array, k: number, work: Float64Array): number {
+  let logDet = 0;
+  let q = 0;
+  for (let i = 0; i < k; i++) {
+    let s = x[i]! - mean[i]!;
+    for (let m = 0; m < i; m++) s -= L[i * k + m]! * work[m]!;
+    const v = s / L[i * k + i]!;
+    work[i] = v;
+    q += v * v;
+    logDet += Math.log(L[i * k + i]!);
+  }
+  return -0.5 * q - logDet - 0.5 * k * Math.log(2 * Math.PI);
+}

@@ -216,7 +216,11 @@ describe('fit diagnostics', () => {
 
   it('flags a fitted peak after the data even when the largest count is not the last', () => {
     const observed = syntheticIncidence(11, run, 20); // the true peak of incidence is near day 28
-    observed.value[observed.value.length - 1] = 0;
+    // swap the last two counts so that the largest is not the last one
+    const n = observed.value.length;
+    const [a, b] = [observed.value[n - 2]!, observed.value[n - 1]!];
+    observed.value[n - 2] = Math.max(a, b) + 1;
+    observed.value[n - 1] = Math.min(a, b);
     const fit = fitScenario({ model: 'SIR', population: 20000, initial: { I: 5 }, observed, observe: 'incidence', estimate: ['beta', 'gamma'], likelihood: 'poisson', options: { samples: 0 } });
     expect(fit.flags.map((f) => f.code)).toContain('before_peak');
   });
