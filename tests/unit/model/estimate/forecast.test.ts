@@ -27,6 +27,21 @@ describe('fitCurve', () => {
   });
 });
 
+describe('fit samples before the peak', () => {
+  it('spread over the whole (curved) profile interval, not just the Laplace ellipse', () => {
+    // [cp] the samples target the likelihood under a flat prior on log-parameters; with a nearly
+    // flat profile their 2.5–97.5% range should match the profile interval in log scale
+    for (const name of ['beta', 'gamma'] as const) {
+      const v = fit.samples.map((s) => Math.log(s[name])).sort((a, b) => a - b);
+      const [lo, hi] = fit.interval[name]!.map(Math.log) as [number, number];
+      const width = hi - lo;
+      expect(Math.abs(v[25]! - lo)).toBeLessThan(0.2 * width);
+      expect(Math.abs(v[974]! - hi)).toBeLessThan(0.2 * width);
+    }
+    expect(new Set(fit.samples.map((s) => s.beta)).size).toBeGreaterThan(500);
+  });
+});
+
 describe('forecastFromFit', () => {
   const fc = forecastFromFit(fit, { days: 120, capacity }, 400, 7);
 

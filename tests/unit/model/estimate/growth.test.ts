@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { growthRate, R0FromGrowth } from '@/lib/model/estimate/growth';
 import { createRng } from '@/lib/model/estimate/random';
+import { simulate } from '@/lib/model';
 
 /** Independent Poisson log-linear fit by bisection on the profile score (a eliminated exactly). */
 function profileScoreFit(y: number[]): { r: number; se: number } {
@@ -129,5 +130,19 @@ describe('R0FromGrowth (Wallinga & Lipsitch 2007, Proc R Soc B 274:599–604)', 
   it('returns NaN outside the range where the relation holds, and needs sigma for SEIR', () => {
     expect(R0FromGrowth(-0.3, { model: 'SIR', gamma: 0.25 })).toBeNaN();
     expect(() => R0FromGrowth(0.1, { model: 'SEIR', gamma: 0.25 })).toThrow(RangeError);
+  });
+});
+
+describe('growthRate on engine output', () => {
+  it('SEIR β = 0.5, σ = 0.2, γ = 0.25: log-slope of early incidence is r = 0.092214', () => {
+    // [calc] REFERENCES.md §3 (eigenvalue formula and the log-slope of a run agree)
+    const run = simulate({
+      model: 'SEIR', population: 1e9, initial: { I: 0, E: 10 }, params: { beta: 0.5, gamma: 0.25, sigma: 0.2 },
+      method: 'rk4', step: 0.05, days: 120,
+    });
+    // skip the first 40 days (transient towards the dominant eigenvector); S/N stays ≈ 1 up to day 100
+    const g = growthRate(Array.from(run.incidence), { from: 40, to: 100 });
+    expect(g.r).toBeCloseTo(0.092214, 4);
+    expect(R0FromGrowth(g.r, { model: 'SEIR', gamma: 0.25, sigma: 0.2 })).toBeCloseTo(2, 2);
   });
 });
