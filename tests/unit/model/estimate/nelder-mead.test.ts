@@ -17,6 +17,8 @@ describe('nelderMead', () => {
     expect(res.x[1]).toBeCloseTo(1, 6);
     expect(res.fx).toBeLessThan(1e-12);
   });
+  // From (−1, 1.5, 0.5, −0.5) the 4-D function leads Nelder–Mead into its known local minimum near
+  // (−0.776, 0.613, 0.382, 0.146), f ≈ 3.70 [calc]; from the origin it reaches the global one.
   it('finds the 4-D Rosenbrock minimum with adaptive coefficients', () => {
     const res = nelderMead(rosenbrock, [0, 0, 0, 0], {
       adaptive: true,

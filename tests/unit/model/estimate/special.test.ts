@@ -74,8 +74,8 @@ describe('chi-square and gamma quantiles', () => {
     expect(Math.abs(chiSquareQuantile(p, df) - value)).toBeLessThan(6e-4);
   });
   it('χ²₁ at 0.05 (small-quantile end of the table)', () => {
-    // [pub] NIST e-Handbook 1.3.6.7.4 lower-tail table: 0.004 for df = 1 at 0.05; [calc] 1.6449² · … =
-    // z_{0.525}² = 0.0039321400 from the normal quantile
+    // [pub] NIST e-Handbook 1.3.6.7.4 lower-tail table: 0.004 for df = 1 at 0.05; [calc] the χ²₁
+    // quantile at p is z_{(1+p)/2}², and z_{0.525} = 0.0627068 gives 0.00393214
     expect(chiSquareQuantile(0.05, 1)).toBeCloseTo(0.00393214, 8);
   });
   it('matches closed forms: χ²₂ quantile = −2 ln(1 − p); exponential quantile = −ln(1 − p)', () => {
