@@ -8,6 +8,10 @@ import { ModelError } from './errors';
 import { MAX_STEPS } from '../validation/scenario';
 import { trackPeak, Y_E, Y_I, Y_LEN, Y_S, P_BN, type Rhs } from './kernels';
 
+// Module-local copies: transpiled to CommonJS (tsx), an imported binding is a getter call per use.
+const nY = Y_LEN, iS = Y_S, iE = Y_E, iI = Y_I, pBN = P_BN;
+const track = trackPeak;
+
 const A21 = 1 / 5;
 const A31 = 3 / 40, A32 = 9 / 40;
 const A41 = 44 / 45, A42 = -56 / 15, A43 = 32 / 9;
@@ -16,6 +20,11 @@ const A61 = 9017 / 3168, A62 = -355 / 33, A63 = 46732 / 5247, A64 = 49 / 176, A6
 const B1 = 35 / 384, B3 = 500 / 1113, B4 = 125 / 192, B5 = -2187 / 6784, B6 = 11 / 84;
 // Difference between the 5th- and the embedded 4th-order weights.
 const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E6 = 22 / 525, E7 = -1 / 40;
+
+// Continuous extension (Hairer, Nørsett & Wanner I, §II.6; the coefficients of their DOPRI5 code):
+// 4th-order dense output from the stages of an accepted step, for whole-day records between steps.
+const D1 = -12715105075 / 11282082432, D3 = 87487479700 / 32700410799, D4 = -10690763975 / 1880347072;
+const D5 = 701980252875 / 199316789632, D6 = -1453857185 / 822651844, D7 = 69997945 / 29380423;
 
 const SAFETY = 0.9;
 const FAC_MIN = 0.2;
@@ -32,6 +41,9 @@ export class Dopri5State {
   readonly k7 = new Float64Array(Y_LEN);
   readonly w = new Float64Array(Y_LEN);
   readonly yn = new Float64Array(Y_LEN);
+  readonly yd = new Float64Array(Y_LEN);
+  /** Next whole day to emit by dense output, days. */
+  nextOut = 1;
   /** Proposed next step, days. */
   h: number;
   /** Accepted + rejected steps so far. */
@@ -53,7 +65,11 @@ export interface StepSink {
   push(t: number, y: Float64Array): void;
 }
 
-/** Advances y in place from a to b (days) with the rates p held constant. */
+/**
+ * Advances y in place from a to b (days) with the rates p held constant. `sink` receives every
+ * accepted step; `dense` receives every whole day st.nextOut, st.nextOut + 1, … ≤ b, interpolated
+ * inside a step by the continuous extension (exact step values when a day ends a step).
+ */
 export function dopri5Interval(
   st: Dopri5State,
   rhs: Rhs,
@@ -63,10 +79,11 @@ export function dopri5Interval(
   b: number,
   pk: Float64Array,
   sink: StepSink | null,
+  dense: StepSink | null = null,
 ): void {
-  const { k1, k2, k3, k4, k5, k6, k7, w, yn, rtol, atol } = st;
-  const n = Y_LEN;
-  const bN = p[P_BN] as number;
+  const { k1, k2, k3, k4, k5, k6, k7, w, yn, yd, rtol, atol } = st;
+  const n = nY;
+  const bN = p[pBN] as number;
   let t = a;
   rhs(k1, y, p);
   for (;;) {
@@ -137,7 +154,36 @@ export function dopri5Interval(
     const fac = err === 0 ? FAC_MAX : Math.min(FAC_MAX, Math.max(FAC_MIN, SAFETY * Math.pow(err, -0.2)));
     if (err <= 1) {
       const tn = last ? b : t + h;
-      trackPeak(pk, bN, t, y[Y_S] as number, y[Y_E] as number, y[Y_I] as number, tn, yn[Y_S] as number, yn[Y_E] as number, yn[Y_I] as number);
+      track(pk, bN, t, y[iS] as number, y[iE] as number, y[iI] as number, tn, yn[iS] as number, yn[iE] as number, yn[iI] as number);
+      if (dense) {
+        const slack = 1e-9 * h;
+        while (st.nextOut <= tn + slack) {
+          const td = st.nextOut;
+          if (Math.abs(td - tn) <= slack) {
+            dense.push(td, yn);
+          } else {
+            const th = (td - t) / h;
+            const th1 = 1 - th;
+            for (let i = 0; i < n; i++) {
+              const y0 = y[i] as number;
+              const r2 = (yn[i] as number) - y0;
+              const r3 = h * (k1[i] as number) - r2;
+              const r4 = r2 - h * (k7[i] as number) - r3;
+              const r5 =
+                h *
+                (D1 * (k1[i] as number) +
+                  D3 * (k3[i] as number) +
+                  D4 * (k4[i] as number) +
+                  D5 * (k5[i] as number) +
+                  D6 * (k6[i] as number) +
+                  D7 * (k7[i] as number));
+              yd[i] = y0 + th * (r2 + th1 * (r3 + th * (r4 + th1 * r5)));
+            }
+            dense.push(td, yd);
+          }
+          st.nextOut = td + 1;
+        }
+      }
       y.set(yn);
       k1.set(k7);
       t = tn;

@@ -56,6 +56,15 @@ function setPath(root: Record<string, unknown>, path: string, value: number, whe
   else node[leaf] = value;
 }
 
+/** Copy of the nested blocks a sample may write into (cheaper than structuredClone per run). */
+function cloneInput(s: ScenarioInput): ScenarioInput {
+  const c: ScenarioInput = { ...s, initial: { ...s.initial }, params: { ...s.params } };
+  if (s.vaccination) c.vaccination = { ...s.vaccination };
+  if (s.capacity) c.capacity = { ...s.capacity };
+  if (s.interventions) c.interventions = s.interventions.map((iv) => ({ ...iv }));
+  return c;
+}
+
 /** Linear-interpolation percentile of sorted values a[off .. off+n). */
 function quantileSorted(a: Float64Array, off: number, n: number, q: number): number {
   const pos = q * (n - 1);
@@ -129,7 +138,7 @@ function runEnsemble(
     let variant = daily;
     const keys = Object.keys(sample);
     if (keys.length > 0) {
-      const copy = structuredClone(daily) as unknown as Record<string, unknown>;
+      const copy = cloneInput(daily) as unknown as Record<string, unknown>;
       for (const key of keys) {
         const where = `samples.${r}.${key}`;
         checkPath(key, where);

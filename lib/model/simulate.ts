@@ -1,7 +1,8 @@
 /**
- * The driver: validates a ScenarioInput, splits the horizon at every whole day and every switch
- * (intervention start/end, vaccination campaign start), and integrates each constant-rate interval
- * with the chosen method. No step or stage straddles a switch: the step that would cross one is
+ * The driver: validates a ScenarioInput, splits the horizon at every switch (intervention start/end,
+ * vaccination campaign start) and, for the fixed-step methods, at every whole day, and integrates each
+ * constant-rate interval with the chosen method. dopri5 with daily records steps freely inside a
+ * segment and emits whole days by its continuous extension. No step or stage straddles a switch: the step that would cross one is
  * shortened to end on it, and the next interval starts afresh from the switch.
  *
  * Step-safety policy (REFERENCES.md §5), checked before integrating, never by clamping:
@@ -117,6 +118,12 @@ function checkStep(input: ScenarioInput): void {
   );
 }
 
+// Module-local copies: when this file is transpiled to CommonJS (tsx), imported bindings become
+// property reads on the other module's exports object, which the per-output path should not pay.
+const iS = Y_S, iE = Y_E, iI = Y_I, iR = Y_R, iV = Y_V, iC = Y_C;
+const pBN = P_BN, pNU = P_NU;
+const advanceAdaptive = dopri5Interval;
+
 /** Growable output columns (people), one row per output time. */
 class Recorder implements StepSink {
   len = 0;
@@ -158,18 +165,18 @@ class Recorder implements StepSink {
   push(t: number, y: Float64Array): void {
     if (this.len === this.t.length) this.grow();
     const k = this.len++;
-    const S = y[Y_S] as number;
-    const E = y[Y_E] as number;
-    const I = y[Y_I] as number;
-    const R = y[Y_R] as number;
-    const V = y[Y_V] as number;
+    const S = y[iS] as number;
+    const E = y[iE] as number;
+    const I = y[iI] as number;
+    const R = y[iR] as number;
+    const V = y[iV] as number;
     this.t[k] = t;
     this.S[k] = S;
     this.E[k] = E;
     this.I[k] = I;
     this.R[k] = R;
     this.V[k] = V;
-    this.C[k] = y[Y_C] as number;
+    this.C[k] = y[iC] as number;
     if (S < this.floor || E < this.floor || I < this.floor || R < this.floor || V < this.floor) this.negative = true;
   }
 }
@@ -223,19 +230,41 @@ export function simulateParsed(input: ScenarioInput): SimulationResult {
   const sink = daily ? null : rec;
   const thr = 1e-9 * h;
 
-  let sw = 0;
-  for (let d = 0; d < days; d++) {
+  // Constant-rate segments between switches, their rates computed once (at each midpoint).
+  const nSeg = switches.length + 1;
+  const segEnd = new Float64Array(nSeg);
+  const segBN = new Float64Array(nSeg);
+  const segNU = new Float64Array(nSeg);
+  for (let i = 0; i < nSeg; i++) {
+    const a = i === 0 ? 0 : (switches[i - 1] as number);
+    const b = i === nSeg - 1 ? days : (switches[i] as number);
+    const mid = 0.5 * (a + b);
+    segEnd[i] = b;
+    segBN[i] = (beta * contactFactor(input, mid)) / N;
+    segNU[i] = vaccinationRate(input, mid);
+  }
+
+  let seg = 0;
+  if (dp && daily) {
+    // Whole segments with dense output: the steps need not stop at every day.
+    dp.nextOut = 1;
+    for (let i = 0; i < nSeg; i++) {
+      p[pBN] = segBN[i] as number;
+      p[pNU] = segNU[i] as number;
+      advanceAdaptive(dp, rhs, y, p, i === 0 ? 0 : (segEnd[i - 1] as number), segEnd[i] as number, pk, null, rec);
+    }
+  }
+  for (let d = 0; d < days && !(dp && daily); d++) {
     let a = d;
     const dayEnd = d + 1;
     while (a < dayEnd) {
-      while (sw < switches.length && (switches[sw] as number) <= a) sw++;
-      const next = switches[sw];
-      const b = next !== undefined && next < dayEnd ? next : dayEnd;
-      const mid = 0.5 * (a + b);
-      p[P_BN] = (beta * contactFactor(input, mid)) / N;
-      p[P_NU] = vaccinationRate(input, mid);
+      while (seg < nSeg - 1 && (segEnd[seg] as number) <= a) seg++;
+      const se = segEnd[seg] as number;
+      const b = se < dayEnd ? se : dayEnd;
+      p[pBN] = segBN[seg] as number;
+      p[pNU] = segNU[seg] as number;
       if (dp) {
-        dopri5Interval(dp, rhs, y, p, a, b, pk, sink);
+        advanceAdaptive(dp, rhs, y, p, a, b, pk, sink);
       } else if (kern) {
         const L = b - a;
         const n = Math.floor(L / h + 1e-9);

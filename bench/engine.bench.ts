@@ -1,0 +1,220 @@
+/**
+ * Engine benchmarks (npm run bench -- engine). Every figure is measured in this one run, side by side:
+ * median of several repeats after a warm-up.
+ *   1. RK4 SIR, 365 days at h = 0.01: the engine vs a hand-written floor loop vs ode-rk4.
+ *   2. Equal accuracy (max error ≤ 1e-6 people against odex at 1e-12): the engine's fastest
+ *      method/step vs the fastest general-purpose library setting.
+ *   3. A 1,000-run ensemble, 365 days, RK4 h = 0.1: time and heap growth.
+ */
+import { ensemble, simulate, type ScenarioInput } from '../lib/model';
+import { initialState, odex, odexPiecewise, piecewiseOf, rk4, wholeDays } from '../tests/unit/model/reference-solvers';
+import type { BenchRow } from './types';
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? (s[m] as number) : 0.5 * ((s[m - 1] as number) + (s[m] as number));
+}
+
+/** Median wall time of fn, ms, after `warm` unmeasured calls. */
+function time(fn: () => unknown, repeats: number, warm = 3): number {
+  let sink = 0;
+  for (let i = 0; i < warm; i++) sink += fn() ? 1 : 0;
+  const xs: number[] = [];
+  for (let i = 0; i < repeats; i++) {
+    const t0 = performance.now();
+    sink += fn() ? 1 : 0;
+    xs.push(performance.now() - t0);
+  }
+  if (sink < 0) console.log(sink);
+  return median(xs);
+}
+
+const sir: ScenarioInput = {
+  model: 'SIR',
+  population: 100_000,
+  initial: { I: 10 },
+  params: { beta: 0.3, gamma: 0.1 },
+  method: 'rk4',
+  step: 0.01,
+  days: 365,
+};
+
+/** The floor: RK4 on a Float64Array state, no allocation, no calls, daily output, same arithmetic. */
+function floorRk4(N: number, S0: number, I0: number, beta: number, gamma: number, h: number, days: number, perDay: number): Float64Array {
+  const y = new Float64Array(3);
+  const k1 = new Float64Array(3);
+  const k2 = new Float64Array(3);
+  const k3 = new Float64Array(3);
+  const k4 = new Float64Array(3);
+  const w = new Float64Array(3);
+  const out = new Float64Array(days + 1);
+  y[0] = S0;
+  y[1] = I0;
+  y[2] = 0;
+  out[0] = I0;
+  const b = beta / N;
+  for (let d = 1; d <= days; d++) {
+    for (let s = 0; s < perDay; s++) {
+      let f = b * y[0]! * y[1]!;
+      k1[0] = -f; k1[1] = f - gamma * y[1]!; k1[2] = gamma * y[1]!;
+      for (let i = 0; i < 3; i++) w[i] = y[i]! + 0.5 * h * k1[i]!;
+      f = b * w[0]! * w[1]!;
+      k2[0] = -f; k2[1] = f - gamma * w[1]!; k2[2] = gamma * w[1]!;
+      for (let i = 0; i < 3; i++) w[i] = y[i]! + 0.5 * h * k2[i]!;
+      f = b * w[0]! * w[1]!;
+      k3[0] = -f; k3[1] = f - gamma * w[1]!; k3[2] = gamma * w[1]!;
+      for (let i = 0; i < 3; i++) w[i] = y[i]! + h * k3[i]!;
+      f = b * w[0]! * w[1]!;
+      k4[0] = -f; k4[1] = f - gamma * w[1]!; k4[2] = gamma * w[1]!;
+      for (let i = 0; i < 3; i++) y[i] = y[i]! + (h / 6) * (k1[i]! + 2 * k2[i]! + 2 * k3[i]! + k4[i]!);
+    }
+    out[d] = y[1]!;
+  }
+  return out;
+}
+
+/** ode-rk4 on the same problem, daily output; `deriv` is the library's calling convention. */
+function odeRk4(input: ScenarioInput, h: number): number[][] {
+  const N = input.population;
+  const { beta, gamma } = input.params;
+  const integ = rk4(
+    Float64Array.from([N - input.initial.I, input.initial.I, 0]),
+    (dy, y) => {
+      const f = (beta * (y[0] as number) * (y[1] as number)) / N;
+      dy[0] = -f;
+      dy[1] = f - gamma * (y[1] as number);
+      dy[2] = gamma * (y[1] as number);
+    },
+    0,
+    h,
+  );
+  const perDay = Math.round(1 / h);
+  const out: number[][] = [Array.from(integ.y)];
+  for (let d = 1; d <= input.days; d++) {
+    integ.steps(perDay);
+    out.push(Array.from(integ.y));
+  }
+  return out;
+}
+
+/** odex with its own dense-output grid (one solve), daily output. */
+function odexGrid(input: ScenarioInput, tol: number): number[][] {
+  const N = input.population;
+  const { beta, gamma } = input.params;
+  const s = new odex.Solver(3) as InstanceType<typeof odex.Solver> & {
+    denseOutput: boolean;
+    grid(dt: number, out: (x: number, y: number[]) => void): unknown;
+    solve(f: (x: number, y: number[]) => number[], x0: number, y0: number[], x1: number, cb?: unknown): { y: number[] };
+  };
+  s.absoluteTolerance = tol;
+  s.relativeTolerance = tol;
+  s.maxSteps = 1e6;
+  s.denseOutput = true;
+  const out: number[][] = [];
+  s.solve(
+    (_x, y) => {
+      const f = (beta * (y[0] as number) * (y[1] as number)) / N;
+      return [-f, f - gamma * (y[1] as number), gamma * (y[1] as number)];
+    },
+    0,
+    [N - input.initial.I, input.initial.I, 0],
+    input.days,
+    s.grid(1, (_x, y) => {
+      out.push(y.slice());
+    }),
+  );
+  return out;
+}
+
+function maxErrSIR(rows: { S: ArrayLike<number>; I: ArrayLike<number>; R: ArrayLike<number> }, ref: number[][]): number {
+  let e = 0;
+  for (let k = 0; k < ref.length; k++) {
+    const r = ref[k] as number[];
+    e = Math.max(e, Math.abs((rows.S[k] ?? NaN) - (r[0] as number)), Math.abs((rows.I[k] ?? NaN) - (r[2] as number)), Math.abs((rows.R[k] ?? NaN) - (r[3] as number)));
+  }
+  return Number.isNaN(e) ? Infinity : e;
+}
+
+const columns = (rows: number[][]) => ({
+  S: rows.map((r) => r[0] as number),
+  I: rows.map((r) => r[1] as number),
+  R: rows.map((r) => r[2] as number),
+});
+
+export default async function engineBench(): Promise<BenchRow[]> {
+  const rows: BenchRow[] = [];
+
+  // 1. Same method, same step.
+  const N = sir.population;
+  const tEngine = time(() => simulate(sir).I[365], 31);
+  const tFloor = time(() => floorRk4(N, N - 10, 10, 0.3, 0.1, 0.01, 365, 100)[365], 31);
+  const tLib = time(() => odeRk4(sir, 0.01)[365], 31);
+  rows.push(
+    { name: 'rk4 SIR 365 d h=0.01: engine', value: tEngine, unit: 'ms' },
+    { name: 'rk4 SIR 365 d h=0.01: floor loop', value: tFloor, unit: 'ms' },
+    { name: 'rk4 SIR 365 d h=0.01: ode-rk4', value: tLib, unit: 'ms' },
+    { name: 'rk4 engine / floor', value: tEngine / tFloor, unit: 'ratio', target: '≤ 1.5' },
+    { name: 'rk4 ode-rk4 / engine', value: tLib / tEngine, unit: 'ratio' },
+  );
+
+  // 2. Equal accuracy against odex at 1e-12, on the canonical case of REFERENCES.md §4 over a year.
+  const acc: ScenarioInput = { ...sir, population: 1000, initial: { I: 1 }, params: { beta: 0.5, gamma: 0.25 } };
+  const ref = odexPiecewise(piecewiseOf(acc), initialState(acc), wholeDays(acc.days), 1e-12);
+  const goal = 1e-6;
+  type Candidate = { label: string; run: () => unknown; err: number };
+  const engineCands: Candidate[] = [];
+  // Steps that divide a day, so ode-rk4 (no step shortening) lands on the same whole days.
+  const steps = [0.25, 0.2, 0.125, 0.1, 1 / 12, 1 / 14, 0.0625, 0.05, 0.04, 0.025, 0.02];
+  for (const h of steps) {
+    const input = { ...acc, step: h };
+    engineCands.push({ label: `engine rk4 h=${h.toPrecision(3)}`, run: () => simulate(input), err: maxErrSIR(simulate(input), ref) });
+  }
+  for (const tol of [1e-6, 1e-7, 1e-8, 1e-9, 1e-10, 1e-11]) {
+    const input: ScenarioInput = { ...acc, method: 'dopri5', step: 0.5, tolerance: tol };
+    engineCands.push({ label: `engine dopri5 tol=${tol}`, run: () => simulate(input), err: maxErrSIR(simulate(input), ref) });
+  }
+  const libCands: Candidate[] = [];
+  for (const h of steps) {
+    libCands.push({ label: `ode-rk4 h=${h.toPrecision(3)}`, run: () => odeRk4(acc, h), err: maxErrSIR(columns(odeRk4(acc, h)), ref) });
+  }
+  for (const tol of [1e-6, 1e-7, 1e-8, 1e-9, 1e-10, 1e-11, 1e-12]) {
+    libCands.push({ label: `odex tol=${tol}`, run: () => odexGrid(acc, tol), err: maxErrSIR(columns(odexGrid(acc, tol)), ref) });
+  }
+  const fastest = (cands: Candidate[]) => {
+    let best: { label: string; ms: number; err: number } | null = null;
+    for (const c of cands) {
+      if (!(c.err <= goal)) continue;
+      const ms = time(c.run, 31, 5);
+      if (!best || ms < best.ms) best = { label: c.label, ms, err: c.err };
+    }
+    return best;
+  };
+  const eBest = fastest(engineCands);
+  const lBest = fastest(libCands);
+  if (eBest && lBest) {
+    rows.push(
+      { name: `equal accuracy ≤1e-6: ${eBest.label}`, value: eBest.ms, unit: 'ms' },
+      { name: `equal accuracy ≤1e-6: ${lBest.label}`, value: lBest.ms, unit: 'ms' },
+      { name: 'equal accuracy: library / engine', value: lBest.ms / eBest.ms, unit: 'ratio', target: '≥ 3' },
+    );
+  }
+
+  // 3. Ensemble.
+  const ens: ScenarioInput = { ...sir, step: 0.1 };
+  const ranges = { 'params.beta': [0.25, 0.35], 'params.gamma': [0.08, 0.12] } as const;
+  ensemble(ens, ranges, 50, 1);
+  const tEns = time(() => ensemble(ens, ranges, 1000, 7).runs, 5, 1);
+  const before = process.memoryUsage().heapUsed;
+  let peak = before;
+  const res = ensemble(ens, ranges, 1000, 8, () => {
+    peak = Math.max(peak, process.memoryUsage().heapUsed);
+  });
+  peak = Math.max(peak, process.memoryUsage().heapUsed);
+  rows.push(
+    { name: 'ensemble 1000 runs 365 d rk4 h=0.1', value: tEns, unit: 'ms', target: '≤ 200' },
+    { name: 'ensemble 1000 runs: peak heap delta', value: (peak - before) / 2 ** 20, unit: 'MiB' },
+  );
+  if (res.runs !== 1000) throw new Error('ensemble lost runs');
+  return rows;
+}
