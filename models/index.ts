@@ -4,8 +4,10 @@ import { initOutbreak, Outbreak } from './outbreak';
 import { initTeam, Team, TeamMembership, OutbreakMember } from './team';
 import { initSite, Site } from './site';
 import { initLedger, LedgerEntry, ServerCounter } from './ledger-entry';
+import { initTally, Tally, Conflict } from './tally';
+import { initScenario, Scenario } from './scenario';
 
-export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter };
+export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter, Tally, Conflict, Scenario };
 
 /**
  * Initialises every model on a connection and declares the associations. Add a new model here
@@ -17,6 +19,8 @@ export function initModels(sequelize: Sequelize): void {
   initTeam(sequelize);
   initSite(sequelize);
   initLedger(sequelize);
+  initTally(sequelize);
+  initScenario(sequelize);
 
   Outbreak.hasMany(Team, { foreignKey: 'outbreakId' });
   Team.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
@@ -28,4 +32,7 @@ export function initModels(sequelize: Sequelize): void {
   TeamMembership.belongsTo(User, { foreignKey: 'userId' });
   OutbreakMember.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
   OutbreakMember.belongsTo(User, { foreignKey: 'userId' });
+  Site.hasMany(Tally, { foreignKey: 'siteId' });
+  Tally.belongsTo(Site, { foreignKey: 'siteId' });
+  Outbreak.hasMany(Scenario, { foreignKey: 'outbreakId' });
 }

@@ -46,7 +46,7 @@ export function SignInForm() {
 
   return (
     <form onSubmit={onSubmit} className="flex flex-col gap-4 rounded-xl border border-line bg-panel p-5" noValidate>
-      {error && <Notice tone="error">{error}</Notice>}
+      {error && <div data-testid="sign-in-error"><Notice tone="error">{error}</Notice></div>}
       <TextField label="E-mail" name="email" type="email" autoComplete="username" required error={fields.email} />
       <TextField label="Password" name="password" type="password" autoComplete="current-password" required error={fields.password} />
       <Button type="submit" size="lg" disabled={busy}>{busy ? 'Signing in…' : 'Sign in'}</Button>

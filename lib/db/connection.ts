@@ -43,13 +43,14 @@ function open(): DbState {
   } else {
     sequelize = new Sequelize(url, { dialect: 'postgres', logging: false });
   }
-  initModels(sequelize);
   const state: DbState = {
     sequelize,
     dialect: file ? 'sqlite' : 'postgres',
     ready: Promise.resolve(),
     lockTail: Promise.resolve(),
   };
+  initModels(sequelize);
+  initialisedFor = sequelize;
   state.ready = migrate(sequelize);
   return state;
 }
@@ -75,9 +76,21 @@ function configureSqliteConnections(sequelize: Sequelize) {
   };
 }
 
+/**
+ * Next bundles the server code more than once (instrumentation, each route), so one process can
+ * hold several copies of the model classes. The connection is shared through globalThis; each
+ * copy of this module binds its own model classes to it once.
+ */
+let initialisedFor: Sequelize | null = null;
+
 function state(): DbState {
   if (!g.__ebbcastDb) g.__ebbcastDb = open();
-  return g.__ebbcastDb;
+  const s = g.__ebbcastDb;
+  if (initialisedFor !== s.sequelize) {
+    initModels(s.sequelize);
+    initialisedFor = s.sequelize;
+  }
+  return s;
 }
 
 /** The connection, migrated. Every data function awaits this before its first query. */

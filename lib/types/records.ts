@@ -53,3 +53,49 @@ export interface UserRecord {
   outbreakIds: string[];
   createdAt: string;
 }
+
+export interface TallyRecord extends SyncMeta {
+  outbreakId: string;
+  siteId: string;
+  /** `YYYY-MM-DD`. */
+  date: string;
+  /** People, per day. */
+  newCases: number;
+  recoveries: number | null;
+  deaths: number | null;
+  admissions: number | null;
+  note: string | null;
+  recordedBy: string | null;
+  recordedAt: string | null;
+}
+
+export interface ScenarioRecord extends SyncMeta {
+  outbreakId: string;
+  name: string;
+  /** A ScenarioInput (lib/validation/scenario.ts). */
+  input: unknown;
+  official: boolean;
+  notes: unknown;
+}
+
+export interface ConflictRecord {
+  id: string;
+  outbreakId: string;
+  entity: string;
+  entityId: string;
+  reason: string;
+  incoming: Record<string, unknown>;
+  current: Record<string, unknown> | null;
+  incomingVersion: number | null;
+  currentVersion: number | null;
+  deviceId: string | null;
+  userId: string | null;
+  recordedAt: string | null;
+  status: 'open' | 'settled';
+  settlement: string | null;
+  settledBy: string | null;
+  settledAt: string | null;
+  settleReason: string | null;
+  version: number;
+  createdAt: string;
+}

@@ -1,12 +1,16 @@
 import type { Sequelize } from 'sequelize';
 import { Umzug, SequelizeStorage } from 'umzug';
 import * as m0001 from './0001-foundation';
+import * as m0002 from './0002-tallies-scenarios';
 
 /**
  * Every migration, in order. Listed here rather than found by a file glob so that the bundled
  * server (Next) and the scripts run the same list. Add yours at the end; never edit a landed one.
  */
-const MIGRATIONS = [m0001];
+const MIGRATIONS = [
+  m0001,
+  m0002,
+];
 
 export function migrator(sequelize: Sequelize) {
   const q = sequelize.getQueryInterface();

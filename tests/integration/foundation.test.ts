@@ -28,9 +28,8 @@ let field: string, field2: string, coordinator: string, supervisor: string, admi
 
 beforeAll(async () => {
   await prepare();
-  [field, field2, coordinator, supervisor, admin] = await Promise.all(
-    ['field', 'field2', 'coordinator', 'supervisor', 'admin'].map((u) => sessionCookie(`${u}@marrowbend.example`)),
-  );
+  const c = await Promise.all(['field', 'field2', 'coordinator', 'supervisor', 'admin'].map((u) => sessionCookie(`${u}@marrowbend.example`)));
+  [field, field2, coordinator, supervisor, admin] = c as [string, string, string, string, string];
 });
 
 describe('database', () => {
