@@ -11,7 +11,28 @@ import { NextRequest } from 'next/server';
 import { encode } from 'next-auth/jwt';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'ebbcast-it-'));
-process.env.DATABASE_URL = `file:${path.join(dir, 'test.sqlite')}`;
+
+/**
+ * With `EBBCAST_TEST_PG` (a PostgreSQL server URL, e.g. postgres://postgres:pw@127.0.0.1:5432/postgres)
+ * each test file gets a database of its own on that server instead of a SQLite file: the same
+ * suite then checks the same models, migrations and routes on PostgreSQL.
+ */
+async function testDatabaseUrl(): Promise<string> {
+  const server = process.env.EBBCAST_TEST_PG;
+  if (!server) return `file:${path.join(dir, 'test.sqlite')}`;
+  const { default: pg } = await import('pg');
+  const name = `ebbcast_it_${path.basename(dir).replace(/[^a-z0-9]/gi, '').toLowerCase()}`;
+  const client = new pg.Client({ connectionString: server });
+  await client.connect();
+  await client.query(`CREATE DATABASE ${name}`);
+  await client.end();
+  const url = new URL(server);
+  url.pathname = `/${name}`;
+  return url.toString();
+}
+
+process.env.DATABASE_URL = await testDatabaseUrl();
+export const USING_POSTGRES = Boolean(process.env.EBBCAST_TEST_PG);
 process.env.NEXTAUTH_SECRET = 'integration-test-secret-0123456789abcdef';
 process.env.NEXTAUTH_URL = 'http://localhost:3000';
 process.env.EBBCAST_DATA_DIR = dir;

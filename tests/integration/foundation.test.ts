@@ -1,4 +1,4 @@
-import { TEST_DIR, call, prepare, sessionCookie } from '../helpers/server';
+import { TEST_DIR, USING_POSTGRES, call, prepare, sessionCookie } from '../helpers/server';
 import { readdirSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -33,7 +33,7 @@ beforeAll(async () => {
 });
 
 describe('database', () => {
-  it('is a real SQLite file in WAL mode with foreign keys on', async () => {
+  it.skipIf(USING_POSTGRES)('is a real SQLite file in WAL mode with foreign keys on', async () => {
     const { db } = await import('@/lib/db/connection');
     const s = await db();
     const [mode] = await s.query<{ journal_mode: string }>('PRAGMA journal_mode', { type: QueryTypes.SELECT });
@@ -102,7 +102,7 @@ describe('API convention', () => {
     const { GET } = await import('@/app/api/health/route');
     const res = await call(GET as never, '/api/health');
     expect(res.status).toBe(200);
-    expect(res.body).toMatchObject({ ok: true, database: 'sqlite' });
+    expect(res.body).toMatchObject({ ok: true, database: USING_POSTGRES ? 'postgres' : 'sqlite' });
   });
 
   it('refuses a wrong role with 403 and no data', async () => {
