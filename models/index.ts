@@ -6,8 +6,9 @@ import { initSite, Site } from './site';
 import { initLedger, LedgerEntry, ServerCounter } from './ledger-entry';
 import { initTally, Tally, Conflict } from './tally';
 import { initScenario, Scenario } from './scenario';
+import { initSync, Device, AppliedMutation } from './sync';
 
-export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter, Tally, Conflict, Scenario };
+export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter, Tally, Conflict, Scenario, Device, AppliedMutation };
 
 /**
  * Initialises every model on a connection and declares the associations. Add a new model here
@@ -21,6 +22,7 @@ export function initModels(sequelize: Sequelize): void {
   initLedger(sequelize);
   initTally(sequelize);
   initScenario(sequelize);
+  initSync(sequelize);
 
   Outbreak.hasMany(Team, { foreignKey: 'outbreakId' });
   Team.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
@@ -35,4 +37,6 @@ export function initModels(sequelize: Sequelize): void {
   Site.hasMany(Tally, { foreignKey: 'siteId' });
   Tally.belongsTo(Site, { foreignKey: 'siteId' });
   Outbreak.hasMany(Scenario, { foreignKey: 'outbreakId' });
+  User.hasMany(Device, { foreignKey: 'userId' });
+  Device.belongsTo(User, { foreignKey: 'userId' });
 }

@@ -2,6 +2,7 @@ import type { Sequelize } from 'sequelize';
 import { Umzug, SequelizeStorage } from 'umzug';
 import * as m0001 from './0001-foundation';
 import * as m0002 from './0002-tallies-scenarios';
+import * as m0004 from './0004-sync';
 
 /**
  * Every migration, in order. Listed here rather than found by a file glob so that the bundled
@@ -10,6 +11,7 @@ import * as m0002 from './0002-tallies-scenarios';
 const MIGRATIONS = [
   m0001,
   m0002,
+  m0004,
 ];
 
 export function migrator(sequelize: Sequelize) {
