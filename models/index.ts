@@ -7,8 +7,9 @@ import { initLedger, LedgerEntry, ServerCounter } from './ledger-entry';
 import { initTally, Tally, Conflict } from './tally';
 import { initScenario, Scenario } from './scenario';
 import { initSync, Device, AppliedMutation } from './sync';
+import { initMail, MailToken, CapacityAlert, TallySheet } from './mail';
 
-export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter, Tally, Conflict, Scenario, Device, AppliedMutation };
+export { User, Outbreak, Team, TeamMembership, OutbreakMember, Site, LedgerEntry, ServerCounter, Tally, Conflict, Scenario, Device, AppliedMutation, MailToken, CapacityAlert, TallySheet };
 
 /**
  * Initialises every model on a connection and declares the associations. Add a new model here
@@ -23,6 +24,7 @@ export function initModels(sequelize: Sequelize): void {
   initTally(sequelize);
   initScenario(sequelize);
   initSync(sequelize);
+  initMail(sequelize);
 
   Outbreak.hasMany(Team, { foreignKey: 'outbreakId' });
   Team.belongsTo(Outbreak, { foreignKey: 'outbreakId' });
@@ -39,4 +41,6 @@ export function initModels(sequelize: Sequelize): void {
   Outbreak.hasMany(Scenario, { foreignKey: 'outbreakId' });
   User.hasMany(Device, { foreignKey: 'userId' });
   Device.belongsTo(User, { foreignKey: 'userId' });
+  MailToken.belongsTo(User, { foreignKey: 'userId' });
+  TallySheet.belongsTo(Site, { foreignKey: 'siteId' });
 }

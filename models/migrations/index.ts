@@ -3,6 +3,7 @@ import { Umzug, SequelizeStorage } from 'umzug';
 import * as m0001 from './0001-foundation';
 import * as m0002 from './0002-tallies-scenarios';
 import * as m0004 from './0004-sync';
+import * as m0005 from './0005-mail-uploads';
 
 /**
  * Every migration, in order. Listed here rather than found by a file glob so that the bundled
@@ -12,6 +13,7 @@ const MIGRATIONS = [
   m0001,
   m0002,
   m0004,
+  m0005,
 ];
 
 export function migrator(sequelize: Sequelize) {
