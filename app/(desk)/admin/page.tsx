@@ -1,6 +1,7 @@
 import type { Metadata } from 'next';
 import { getActor } from '@/lib/auth/session';
-import { authorize } from '@/lib/auth/permissions';
+import { may } from '@/lib/auth/permissions';
+import { NotAllowed } from '@/components/shell/not-allowed';
 import { listUsers } from '@/lib/db/users';
 import { listAllTeams } from '@/lib/db/teams';
 import { UsersAdmin } from '@/components/admin/users-admin';
@@ -10,7 +11,7 @@ export const dynamic = 'force-dynamic';
 
 export default async function AdminPage() {
   const actor = await getActor();
-  authorize(actor, 'user:manage');
+  if (!actor || !may(actor, 'user:manage')) return <NotAllowed what="user administration" />;
   const [users, teams] = await Promise.all([listUsers(), listAllTeams()]);
   return <UsersAdmin users={users} teams={teams} />;
 }
