@@ -2,6 +2,7 @@ import type { Sequelize } from 'sequelize';
 import { Umzug, SequelizeStorage } from 'umzug';
 import * as m0001 from './0001-foundation';
 import * as m0002 from './0002-tallies-scenarios';
+import * as m0003 from './0003-tally-indexes';
 import * as m0004 from './0004-sync';
 import * as m0005 from './0005-mail-uploads';
 
@@ -12,6 +13,7 @@ import * as m0005 from './0005-mail-uploads';
 const MIGRATIONS = [
   m0001,
   m0002,
+  m0003,
   m0004,
   m0005,
 ];

@@ -1,0 +1,9 @@
+import { route } from '@/lib/http/handler';
+import { getReportingGrid } from '@/lib/db/tallies';
+import { gridQuerySchema } from '@/lib/tallies/query';
+
+export const runtime = 'nodejs';
+export const dynamic = 'force-dynamic';
+
+/** Which sites reported on which days, `?from=&to=` (default the last 28 days). */
+export const GET = route({ query: gridQuerySchema }, async ({ actor, params, query }) => getReportingGrid(actor, params.id!, query));
