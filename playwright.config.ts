@@ -31,7 +31,8 @@ export default defineConfig({
     screenshot: 'only-on-failure',
   },
   webServer: {
-    command: `node node_modules/next/dist/bin/next start -p ${PORT} -H 127.0.0.1`,
+    // The mail catcher runs beside the server and hands it SMTP_URL (scripts/mail-catcher.mjs).
+    command: `node scripts/mail-catcher.mjs --dir ${path.join(tmp, 'mail')} -- node node_modules/next/dist/bin/next start -p ${PORT} -H 127.0.0.1`,
     url: `${baseURL}/api/health`,
     reuseExistingServer: false,
     timeout: 180_000,

@@ -4,6 +4,7 @@ import { spawnSync, spawn } from 'node:child_process';
 import { existsSync, readdirSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { root, dataDir, ensureSecret } from './env.mjs';
+import { startCatcher } from './mail-catcher.mjs';
 
 const port = process.env.PORT || '3000';
 const host = process.env.HOST || '0.0.0.0';
@@ -43,6 +44,13 @@ if (!existsSync(buildIdFile) || statSync(buildIdFile).mtimeMs < newestSource()) 
   if (r.status !== 0) process.exit(r.status ?? 1);
 }
 
+// No SMTP relay configured: catch mail locally (loopback only); admins read it on /mail.
+if (!env.SMTP_URL) {
+  const catcher = await startCatcher({ dir: path.join(dataDir, 'mail'), port: Number(process.env.MAIL_CATCHER_PORT || 0) });
+  env.SMTP_URL = catcher.url;
+  env.MAIL_CATCHER_DIR = catcher.dir;
+  console.log(`No SMTP_URL: mail goes to the local catcher on ${catcher.url} (sent mail: /mail, files: ${path.relative(root, catcher.dir)})`);
+}
 console.log(`Ebbcast on http://localhost:${port}  (data: ${path.relative(root, dataDir) || '.'})`);
 const child = spawn(process.execPath, [path.join(root, 'node_modules/next/dist/bin/next'), 'start', '-p', port, '-H', host], { cwd: root, env, stdio: 'inherit' });
 for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig));
