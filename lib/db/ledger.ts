@@ -1,6 +1,8 @@
 import { createHash } from 'node:crypto';
 import { Op, type Transaction, type WhereOptions } from 'sequelize';
-import { LedgerEntry } from '@/models';
+import { Device, LedgerEntry, User } from '@/models';
+import type { Actor } from '@/lib/auth/actor';
+import { authorize } from '@/lib/auth/permissions';
 import { db, writeTx } from './connection';
 
 export interface LedgerInput {
@@ -141,4 +143,54 @@ export async function verifyLedger(): Promise<{ ok: boolean; rows: number; first
     }
   }
   return { ok: true, rows: n };
+}
+
+/** The reader's view of the ledger: ledger:read, limited to their outbreaks (admins: everything). */
+export async function listLedgerForActor(
+  actor: Actor,
+  q: { user?: string; device?: string; outbreak?: string; kind?: string; from?: string; to?: string; limit?: number; offset?: number },
+): Promise<{ rows: LedgerRow[]; total: number }> {
+  authorize(actor, 'ledger:read', q.outbreak ? { outbreakId: q.outbreak } : {});
+  return listLedger({
+    userId: q.user, deviceId: q.device, outbreakId: q.outbreak, kind: q.kind,
+    // Whole days: `to` covers the day it names.
+    from: q.from ? `${q.from}T00:00:00.000Z` : undefined,
+    to: q.to ? `${q.to}T23:59:59.999Z` : undefined,
+    outbreakIds: actor.role === 'admin' ? undefined : actor.outbreakIds,
+    limit: q.limit, offset: q.offset,
+  });
+}
+
+const CSV_COLUMNS = ['id', 'at', 'kind', 'user', 'userId', 'device', 'deviceId', 'outbreakId', 'applied', 'duplicate', 'conflict', 'rejected', 'changes', 'durationMs', 'detail', 'hash'] as const;
+
+/** A CSV cell: quoted when needed; a leading =, +, - or @ is defused so a spreadsheet does not run it. */
+function cell(v: unknown): string {
+  let s = v == null ? '' : typeof v === 'string' ? v : typeof v === 'number' ? String(v) : JSON.stringify(v);
+  if (/^[=+\-@\t\r]/.test(s)) s = `'${s}`;
+  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+/** Ledger rows as CSV (RFC 4180, CRLF), oldest first, with names beside the ids. */
+export function ledgerToCsv(rows: LedgerRow[], names: { users: Record<string, string>; devices: Record<string, string> }): string {
+  const lines = [CSV_COLUMNS.join(',')];
+  for (const r of [...rows].sort((a, b) => a.id - b.id)) {
+    const c = r.counts ?? {};
+    lines.push([
+      r.id, r.at, r.kind, r.userId ? names.users[r.userId] ?? '' : '', r.userId, r.deviceId ? names.devices[r.deviceId] ?? '' : '', r.deviceId,
+      r.outbreakId, c.applied, c.duplicate, c.conflict, c.rejected, c.changes, r.durationMs, r.detail, r.hash,
+    ].map(cell).join(','));
+  }
+  return lines.join('\r\n') + '\r\n';
+}
+
+/** Names of the users and devices a set of ledger rows mentions. */
+export async function ledgerNames(rows: LedgerRow[]): Promise<{ users: Record<string, string>; devices: Record<string, string> }> {
+  const userIds = [...new Set(rows.map((r) => r.userId).filter((x): x is string => Boolean(x)))];
+  const deviceIds = [...new Set(rows.map((r) => r.deviceId).filter((x): x is string => Boolean(x)))];
+  const users = userIds.length ? await User.findAll({ where: { id: { [Op.in]: userIds } }, attributes: ['id', 'name'] }) : [];
+  const devices = deviceIds.length ? await Device.findAll({ where: { id: { [Op.in]: deviceIds } }, attributes: ['id', 'label'] }) : [];
+  return {
+    users: Object.fromEntries(users.map((u) => [u.id, u.name])),
+    devices: Object.fromEntries(devices.map((d) => [d.id, d.label])),
+  };
 }

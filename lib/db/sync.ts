@@ -1,0 +1,321 @@
+/**
+ * The server side of sync (SYNC.md): device registration, the idempotent push and the cursor
+ * pull. Push applies each mutation through the entity's own data function (lib/db/tallies.ts,
+ * lib/db/scenarios.ts) with the batch's transaction passed in, so the rules live in one place.
+ */
+import { Op, type Transaction, type WhereOptions } from 'sequelize';
+import { AppliedMutation, Device, Outbreak, Scenario, Site, Tally, Team } from '@/models';
+import type { Actor } from '@/lib/auth/actor';
+import { authorize, may } from '@/lib/auth/permissions';
+import { AppError, forbidden } from '@/lib/http/errors';
+import type { Change, Mutation, PullEntity, PullResponse, PushResponse, PushResult } from '@/lib/sync/protocol';
+import type { DeviceRegisterInput, PushBody } from '@/lib/validation/sync';
+import { DEFAULT_PULL_LIMIT, MAX_PULL_LIMIT } from '@/lib/validation/sync';
+import { tallyInputSchema } from '@/lib/validation/tally';
+import { scenarioRecordInputSchema } from '@/lib/validation/scenario-record';
+import { uuidSchema } from '@/lib/validation/common';
+import { db, writeTx } from './connection';
+import { appendLedger } from './ledger';
+import { toOutbreakRecord, toSiteRecord, toTeamRecord } from './outbreaks';
+import { deleteTally, toTallyRecord, upsertTally } from './tallies';
+import { deleteScenario, toScenarioRecord, upsertScenario } from './scenarios';
+
+export interface DeviceRecord {
+  id: string;
+  userId: string;
+  label: string;
+  lastSeenAt: string | null;
+  highestSeq: number;
+}
+
+const toDeviceRecord = (d: Device): DeviceRecord => ({
+  id: d.id, userId: d.userId, label: d.label,
+  lastSeenAt: d.lastSeenAt ? new Date(d.lastSeenAt).toISOString() : null,
+  highestSeq: Number(d.highestSeq),
+});
+
+/**
+ * Registers this installation for the signed-in user, or renames it. A device id already
+ * registered to someone else is refused (403): its outbox belongs to that person.
+ */
+export async function registerDevice(actor: Actor, input: DeviceRegisterInput): Promise<DeviceRecord> {
+  authorize(actor, 'sync:pull');
+  const d = await writeTx(async (t) => {
+    const existing = await Device.findByPk(input.id, { transaction: t });
+    if (existing) {
+      if (existing.userId !== actor.id) throw forbidden('this device (it is registered to another user)');
+      return existing.update({ label: input.label, lastSeenAt: new Date() }, { transaction: t });
+    }
+    const created = await Device.create({ id: input.id, userId: actor.id, label: input.label, lastSeenAt: new Date(), highestSeq: 0 }, { transaction: t });
+    await appendLedger(t, { kind: 'device.register', userId: actor.id, deviceId: input.id, detail: { label: input.label } });
+    return created;
+  });
+  return toDeviceRecord(d);
+}
+
+/** The signed-in user's devices; coordinators and supervisors also see the devices that pushed to their outbreaks (labels for the desk). */
+export async function listDevices(actor: Actor): Promise<DeviceRecord[]> {
+  await db();
+  const where: WhereOptions = actor.role === 'field' ? { userId: actor.id } : {};
+  return (await Device.findAll({ where, order: [['label', 'ASC']] })).map(toDeviceRecord);
+}
+
+type Counts = { applied: number; duplicate: number; conflict: number; rejected: number; resent: number };
+
+/**
+ * Applies one batch in one write transaction: every mutation is recorded with its answer, or
+ * none is (a seq gap or a server error rolls the whole batch back). A mutation already recorded
+ * gets its stored answer again and changes nothing.
+ */
+export async function pushMutations(actor: Actor, body: PushBody): Promise<PushResponse> {
+  authorize(actor, 'sync:push');
+  await db();
+  const started = performance.now();
+  return writeTx(async (t) => {
+    const device = await Device.findByPk(body.deviceId, { transaction: t });
+    if (!device) throw new AppError('not_found', 'This device is not registered yet; register it, then push again.', { detail: { reason: 'device_unknown' } });
+    if (device.userId !== actor.id) throw forbidden('this device (it is registered to another user)');
+    const known = new Map<string, AppliedMutation>();
+    if (body.mutations.length) {
+      const rows = await AppliedMutation.findAll({ where: { mutationId: { [Op.in]: body.mutations.map((m) => m.mutationId) } }, transaction: t });
+      for (const r of rows) known.set(r.mutationId, r);
+    }
+    let highest = Number(device.highestSeq);
+    const counts: Counts = { applied: 0, duplicate: 0, conflict: 0, rejected: 0, resent: 0 };
+    const results: PushResult[] = [];
+    const outbreakIds = new Set<string>();
+    for (const m of body.mutations) {
+      const prior = known.get(m.mutationId);
+      if (prior) {
+        if (prior.deviceId !== device.id || Number(prior.seq) !== m.seq) {
+          throw new AppError('conflict', `Mutation ${m.mutationId} was recorded before with another device or seq.`, { detail: { reason: 'mutation_reused' } });
+        }
+        results.push(JSON.parse(prior.result) as PushResult);
+        counts.resent++;
+        continue;
+      }
+      const expectedSeq = highest + 1;
+      if (m.seq !== expectedSeq) {
+        throw new AppError(
+          'conflict',
+          m.seq > expectedSeq
+            ? `Mutations are missing before seq ${m.seq}: the server expects seq ${expectedSeq} next. Send the outbox again from there.`
+            : `Seq ${m.seq} was already used by another mutation of this device; the server expects seq ${expectedSeq} next.`,
+          { detail: { reason: m.seq > expectedSeq ? 'seq_gap' : 'seq_reused', expectedSeq, seq: m.seq } },
+        );
+      }
+      const { result, outbreakId } = await applyOne(actor, device.id, m, t);
+      if (outbreakId) outbreakIds.add(outbreakId);
+      await AppliedMutation.create(
+        {
+          mutationId: m.mutationId, deviceId: device.id, seq: m.seq, entity: m.entity, entityId: m.entityId,
+          fate: result.fate, reason: result.reason ?? null, result: JSON.stringify(result), appliedAt: new Date(),
+        },
+        { transaction: t },
+      );
+      if (result.fate === 'conflict') {
+        await appendLedger(t, {
+          kind: 'conflict', userId: actor.id, deviceId: device.id, outbreakId,
+          detail: { conflictId: result.conflictId, entity: m.entity, entityId: m.entityId, reason: result.reason, mutationId: m.mutationId },
+        });
+      }
+      counts[result.fate]++;
+      results.push(result);
+      highest = m.seq;
+    }
+    await device.update({ highestSeq: highest, lastSeenAt: new Date() }, { transaction: t });
+    const only = outbreakIds.size === 1 ? [...outbreakIds][0]! : null;
+    await appendLedger(t, {
+      kind: 'push', userId: actor.id, deviceId: device.id, outbreakId: only,
+      counts: { mutations: body.mutations.length, ...counts },
+      durationMs: performance.now() - started,
+      detail: {
+        firstSeq: body.mutations[0]?.seq ?? null, lastSeq: body.mutations.at(-1)?.seq ?? null,
+        ...(outbreakIds.size > 1 ? { outbreakIds: [...outbreakIds] } : {}),
+      },
+    });
+    return { results, highestSeq: highest };
+  });
+}
+
+interface Applied {
+  result: PushResult;
+  outbreakId: string | null;
+}
+
+/**
+ * One mutation inside a savepoint: an expected refusal (scope, validation, a missing record) rolls
+ * back only this mutation's writes and answers `rejected`; anything unexpected aborts the batch.
+ */
+async function applyOne(actor: Actor, deviceId: string, m: Mutation, t: Transaction): Promise<Applied> {
+  const sequelize = await db();
+  try {
+    return await sequelize.transaction({ transaction: t }, (sp) => applyEntity(actor, deviceId, m, sp));
+  } catch (err) {
+    if (err instanceof AppError && err.status < 500) {
+      const current = await visibleRecord(actor, m.entity, m.entityId, t);
+      return {
+        result: { mutationId: m.mutationId, fate: 'rejected', reason: rejectReason(err), record: current?.record ?? null },
+        outbreakId: current?.outbreakId ?? null,
+      };
+    }
+    throw err;
+  }
+}
+
+function rejectReason(err: AppError): string {
+  const r = (err.detail as { reason?: unknown } | undefined)?.reason;
+  if (typeof r === 'string') return r;
+  if (err.code === 'conflict') return 'stale_version';
+  return err.code;
+}
+
+const reject = (m: Mutation, reason: string): Applied => ({ result: { mutationId: m.mutationId, fate: 'rejected', reason, record: null }, outbreakId: null });
+
+async function applyEntity(actor: Actor, deviceId: string, m: Mutation, t: Transaction): Promise<Applied> {
+  if (m.entity === 'tally') return applyTally(actor, deviceId, m, t);
+  if (m.entity === 'scenario') return applyScenario(actor, deviceId, m, t);
+  return reject(m, 'entity_not_supported');
+}
+
+async function applyTally(actor: Actor, deviceId: string, m: Mutation, t: Transaction): Promise<Applied> {
+  const ctx = { deviceId, mutationId: m.mutationId, recordedAt: new Date(m.recordedAt), baseVersion: m.baseVersion };
+  if (m.op === 'delete') {
+    const r = await deleteTally(actor, m.entityId, ctx, t);
+    return { result: fromTallyOutcome(m, r), outbreakId: r.tally?.outbreakId ?? null };
+  }
+  const parsed = tallyInputSchema.safeParse({ ...(m.payload ?? {}), id: m.entityId, baseVersion: m.baseVersion });
+  if (!parsed.success) {
+    throw new AppError('validation_failed', 'The tally is not valid.', { detail: { reason: 'validation_failed' } });
+  }
+  const r = await upsertTally(actor, parsed.data, ctx, t);
+  return { result: fromTallyOutcome(m, r), outbreakId: r.tally?.outbreakId ?? null };
+}
+
+function fromTallyOutcome(
+  m: Mutation,
+  r: { status: 'applied' | 'unchanged' | 'conflict'; tally?: unknown; conflict?: { id: string; reason?: string } | null },
+): PushResult {
+  const record = (r.tally ?? null) as Record<string, unknown> | null;
+  if (r.status === 'applied') return { mutationId: m.mutationId, fate: 'applied', record };
+  if (r.status === 'unchanged') return { mutationId: m.mutationId, fate: 'duplicate', reason: 'same_values', record };
+  return { mutationId: m.mutationId, fate: 'conflict', reason: r.conflict?.reason ?? 'conflict', record, conflictId: r.conflict?.id };
+}
+
+const scenarioPayloadSchema = scenarioRecordInputSchema.omit({ baseVersion: true, id: true }).extend({ outbreakId: uuidSchema });
+
+async function applyScenario(actor: Actor, deviceId: string, m: Mutation, t: Transaction): Promise<Applied> {
+  const current = await Scenario.findByPk(m.entityId, { transaction: t });
+  // A device's own last write is the base of its next one (the same rule as tallies).
+  const own = current && current.deviceId === deviceId;
+  const base = own ? Number(current.version) : (m.baseVersion ?? undefined);
+  if (m.op === 'delete') {
+    if (!current) throw new AppError('not_found', 'Scenario was not found.', { detail: { reason: 'not_found' } });
+    authorize(actor, 'scenario:read', { outbreakId: current.outbreakId });
+    if (current.deletedAt) return { result: { mutationId: m.mutationId, fate: 'duplicate', reason: 'already_deleted', record: { ...toScenarioRecord(current) } }, outbreakId: current.outbreakId };
+    const rec = await deleteScenario(actor, m.entityId, { deviceId, baseVersion: base }, t);
+    return { result: { mutationId: m.mutationId, fate: 'applied', record: { ...rec } }, outbreakId: rec.outbreakId };
+  }
+  const parsed = scenarioPayloadSchema.safeParse(m.payload ?? {});
+  if (!parsed.success) throw new AppError('validation_failed', 'The scenario is not valid.', { detail: { reason: 'validation_failed' } });
+  const rec = await upsertScenario(actor, { ...parsed.data, id: m.entityId }, { deviceId, baseVersion: current ? base : undefined }, t);
+  return { result: { mutationId: m.mutationId, fate: 'applied', record: { ...rec } }, outbreakId: rec.outbreakId };
+}
+
+/** The server's record of an entity when the actor may read it (sent with a rejection so the device can put it back). */
+async function visibleRecord(actor: Actor, entity: string, id: string, t: Transaction): Promise<{ record: Record<string, unknown>; outbreakId: string } | null> {
+  if (entity === 'tally') {
+    const row = await Tally.findByPk(id, { transaction: t });
+    if (!row) return null;
+    const site = await Site.findByPk(row.siteId, { transaction: t });
+    if (!may(actor, 'tally:read', { outbreakId: row.outbreakId, teamId: site?.teamId ?? null })) return null;
+    return { record: { ...toTallyRecord(row) }, outbreakId: row.outbreakId };
+  }
+  if (entity === 'scenario') {
+    const row = await Scenario.findByPk(id, { transaction: t });
+    if (!row || !may(actor, 'scenario:read', { outbreakId: row.outbreakId })) return null;
+    return { record: { ...toScenarioRecord(row) }, outbreakId: row.outbreakId };
+  }
+  return null;
+}
+
+interface PullSource {
+  entity: PullEntity;
+  fetch: (after: number, limit: number) => Promise<Change[]>;
+}
+
+/** What the actor may see of each synced table, as `where` clauses; tombstones included. */
+async function pullSources(actor: Actor): Promise<PullSource[]> {
+  const outbreakIds = actor.outbreakIds;
+  const field = actor.role === 'field';
+  const seq = (after: number) => ({ changeSeq: { [Op.gt]: after } });
+  let siteIds: string[] | null = null;
+  if (field) {
+    siteIds = (await Site.findAll({ where: { outbreakId: { [Op.in]: outbreakIds }, teamId: { [Op.in]: actor.teamIds } }, attributes: ['id'] })).map((s) => s.id);
+  }
+  const opts = (limit: number) => ({ order: [['changeSeq', 'ASC']] as [string, string][], limit });
+  return [
+    {
+      entity: 'outbreak',
+      fetch: async (after, limit) =>
+        (await Outbreak.findAll({ where: { ...seq(after), id: { [Op.in]: outbreakIds } }, ...opts(limit) })).map((r) => ({ entity: 'outbreak', record: { ...toOutbreakRecord(r) } })),
+    },
+    {
+      entity: 'team',
+      fetch: async (after, limit) =>
+        (await Team.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds } }, ...opts(limit) })).map((r) => ({ entity: 'team', record: { ...toTeamRecord(r) } })),
+    },
+    {
+      entity: 'site',
+      fetch: async (after, limit) =>
+        (await Site.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds }, ...(field ? { teamId: { [Op.in]: actor.teamIds } } : {}) }, ...opts(limit) }))
+          .map((r) => ({ entity: 'site', record: { ...toSiteRecord(r) } })),
+    },
+    {
+      entity: 'tally',
+      fetch: async (after, limit) =>
+        (await Tally.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds }, ...(siteIds ? { siteId: { [Op.in]: siteIds } } : {}) }, ...opts(limit) }))
+          .map((r) => ({ entity: 'tally', record: { ...toTallyRecord(r) } })),
+    },
+    {
+      entity: 'scenario',
+      fetch: async (after, limit) =>
+        (await Scenario.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds } }, ...opts(limit) })).map((r) => ({ entity: 'scenario', record: { ...toScenarioRecord(r) } })),
+    },
+  ];
+}
+
+/**
+ * One page of the changes the actor may see after `cursor`, in server order (changeSeq) across the
+ * synced tables. Each table is asked for `limit + 1` rows, so the first `limit` of the merge are
+ * exactly the next `limit` changes overall.
+ */
+export async function pullChanges(actor: Actor, q: { cursor?: number; limit?: number; deviceId?: string | null }): Promise<PullResponse> {
+  authorize(actor, 'sync:pull');
+  await db();
+  const started = performance.now();
+  const cursor = q.cursor ?? 0;
+  const limit = Math.min(Math.max(1, q.limit ?? DEFAULT_PULL_LIMIT), MAX_PULL_LIMIT);
+  const sources = await pullSources(actor);
+  const all = (await Promise.all(sources.map((s) => s.fetch(cursor, limit + 1)))).flat();
+  all.sort((a, b) => a.record.changeSeq - b.record.changeSeq);
+  const changes = all.slice(0, limit);
+  const more = all.length > limit;
+  const next = changes.length ? changes[changes.length - 1]!.record.changeSeq : cursor;
+  // The device id comes from the client as a hint for the ledger; only a device of this user is named.
+  let deviceId: string | null = null;
+  if (q.deviceId) {
+    const d = await Device.findByPk(q.deviceId);
+    if (d && d.userId === actor.id) deviceId = d.id;
+  }
+  await writeTx((t) =>
+    appendLedger(t, {
+      kind: 'pull', userId: actor.id, deviceId,
+      outbreakId: actor.outbreakIds.length === 1 ? actor.outbreakIds[0]! : null,
+      counts: { changes: changes.length },
+      durationMs: performance.now() - started,
+      detail: { from: cursor, to: next, more },
+    }),
+  );
+  return { changes, cursor: next, more };
+}
