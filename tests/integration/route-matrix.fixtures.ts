@@ -41,10 +41,29 @@ export interface MatrixCtx {
   newTally(): Promise<{ id: string; siteId: string; date: string; version: number }>;
   /** An open conflict (duplicate day) on a fresh North site. */
   newConflict(): Promise<{ id: string; version: number; currentVersion: number }>;
+  /** A stored tally sheet (PNG) of a fresh North site, uploaded by the coordinator. */
+  newSheet(): Promise<{ id: string; siteId: string }>;
   /** Today, UTC, `YYYY-MM-DD` (a day the demo outbreak accepts tallies for). */
   today: string;
   /** Scratch space shared by one request's params, query and body functions (they run in that order). */
   state: Record<string, unknown>;
+}
+
+export interface RawBody {
+  body: string | Uint8Array;
+  contentType: string;
+}
+
+/** The smallest file the sheet check accepts as PNG: the 8-byte signature (RFC 2083 §3.1) and a few bytes. */
+export const PNG_BYTES = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]);
+
+/** A multipart/form-data body as a browser sends it (built by undici's own FormData encoder). */
+export async function multipart(fields: Record<string, string>, file?: { name: string; bytes: Uint8Array; type?: string }): Promise<RawBody> {
+  const form = new FormData();
+  for (const [k, v] of Object.entries(fields)) form.set(k, v);
+  if (file) form.set('file', new Blob([file.bytes], { type: file.type ?? 'application/octet-stream' }), file.name);
+  const req = new Request('http://form.invalid/', { method: 'POST', body: form });
+  return { body: new Uint8Array(await req.arrayBuffer()), contentType: req.headers.get('content-type')! };
 }
 
 export interface Fixture {
@@ -57,7 +76,7 @@ export interface Fixture {
   /** JSON body. */
   body?: (ctx: MatrixCtx) => Promise<unknown> | unknown;
   /** A raw body with its own content type (CSV uploads). */
-  raw?: (ctx: MatrixCtx) => Promise<{ body: string; contentType: string }> | { body: string; contentType: string };
+  raw?: (ctx: MatrixCtx) => Promise<RawBody> | RawBody;
   /**
    * Not callable in this process, with the reason and where it is covered instead. next-auth's
    * handler reads cookies() from Next's request scope, which only a real server provides.
@@ -212,6 +231,18 @@ export const FIXTURES: Record<string, Fixture> = {
     raw: (c) => ({ contentType: 'text/csv', body: `site,date,newCases\r\nAlder Camp,${c.today},5\r\n` }),
     expect: only('coordinator'),
   },
+
+  // ---- tally sheets (uploads) ----
+  'POST uploads': {
+    raw: async (c) => multipart({ clientId: crypto.randomUUID(), siteId: await c.newSite(), date: c.today }, { name: 'sheet.png', bytes: PNG_BYTES, type: 'image/png' }),
+    expect: only('field', 'coordinator'),
+    note: 'upload:write on a North site: Lakeshore is refused by team scope; supervisors and admins do not upload.',
+  },
+  'GET uploads': {
+    query: async (c) => `siteId=${(await c.newSheet()).siteId}`,
+    expect: only('field', 'coordinator', 'supervisor'),
+  },
+  'GET uploads/[id]': { params: async (c) => ({ id: (await c.newSheet()).id }), expect: only('field', 'coordinator', 'supervisor') },
 
   // ---- merge desk and ledger ----
   'GET conflicts': { query: () => `outbreak=${O}&status=all`, expect: only('coordinator') },

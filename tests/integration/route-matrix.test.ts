@@ -14,7 +14,7 @@ import path from 'node:path';
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_IDS } from '@/lib/db/demo';
-import { ACTORS, FIXTURES, NORTH_SITES, countRows, diffCounts, scenarioInput, type ActorName, type Fixture, type MatrixCtx } from './route-matrix.fixtures';
+import { ACTORS, FIXTURES, NORTH_SITES, PNG_BYTES, countRows, diffCounts, scenarioInput, type ActorName, type Fixture, type MatrixCtx } from './route-matrix.fixtures';
 
 
 const API = path.join(process.cwd(), 'app/api');
@@ -134,6 +134,13 @@ function ctxFor(actor: ActorName): MatrixCtx {
       const r = await upsertTally(coordinatorActor, { id: randomUUID(), siteId: site.id, date: TODAY, newCases: 2 }, { deviceId: null });
       if (r.status !== 'conflict' || !r.conflict) throw new Error('expected a duplicate-day conflict');
       return { id: r.conflict.id, version: r.conflict.version, currentVersion: r.tally!.version };
+    },
+    newSheet: async () => {
+      const { createSite } = await import('@/lib/db/outbreaks');
+      const { saveTallySheet } = await import('@/lib/db/uploads');
+      const site = await createSite(coordinatorActor, { outbreakId: DEMO_IDS.outbreak, teamId: DEMO_IDS.teamNorth, name: `Matrix site ${randomUUID().slice(0, 8)}`, kind: 'camp', population: 500 });
+      const r = (await saveTallySheet(coordinatorActor, { clientId: randomUUID(), siteId: site.id, date: TODAY }, { name: 'sheet.png', bytes: PNG_BYTES })) as { sheet: { id: string } };
+      return { id: r.sheet.id, siteId: site.id };
     },
     today: TODAY,
     state: {},
