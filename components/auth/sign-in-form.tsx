@@ -50,6 +50,7 @@ export function SignInForm() {
       <TextField label="E-mail" name="email" type="email" autoComplete="username" required error={fields.email} />
       <TextField label="Password" name="password" type="password" autoComplete="current-password" required error={fields.password} />
       <Button type="submit" size="lg" disabled={busy}>{busy ? 'Signing in…' : 'Sign in'}</Button>
+      <a href="/forgot" className="inline-flex min-h-touch items-center self-start text-accent">Forgot password?</a>
     </form>
   );
 }

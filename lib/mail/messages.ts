@@ -1,5 +1,6 @@
 import { ROLE_LABEL, type Role } from '@/lib/auth/roles';
 import type { OutgoingMail } from './transport';
+import { formatDay, formatWhen } from './format';
 
 /**
  * Every message Ebbcast sends, in our own words, as a plain-text and an HTML part. Messages carry
@@ -9,17 +10,7 @@ import type { OutgoingMail } from './transport';
 export const esc = (s: string) =>
   s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
 
-/** `14 Mar 2026, 09:30 UTC` — unambiguous across locales. */
-export function formatWhen(d: Date): string {
-  const months = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
-  const pad = (n: number) => String(n).padStart(2, '0');
-  return `${d.getUTCDate()} ${months[d.getUTCMonth()]} ${d.getUTCFullYear()}, ${pad(d.getUTCHours())}:${pad(d.getUTCMinutes())} UTC`;
-}
-
-/** `2026-03-14` → `14 Mar 2026`. */
-export function formatDay(iso: string): string {
-  return formatWhen(new Date(`${iso}T00:00:00Z`)).replace(/, .*$/, '');
-}
+export { formatWhen, formatDay };
 
 const FOOTER_TEXT =
   'Ebbcast keeps aggregate counts per site and day only; this message holds no patient details.\n' +

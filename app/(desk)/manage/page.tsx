@@ -4,6 +4,7 @@ import { may } from '@/lib/auth/permissions';
 import { NotAllowed } from '@/components/shell/not-allowed';
 import { listOutbreaksForActor, listSitesByOutbreak, listTeamsByOutbreak } from '@/lib/db/outbreaks';
 import { ManageOutbreaks } from '@/components/manage/manage-outbreaks';
+import { InvitePanel } from '@/components/mail/invite-panel';
 
 export const metadata: Metadata = { title: 'Outbreaks & sites' };
 export const dynamic = 'force-dynamic';
@@ -15,5 +16,5 @@ export default async function ManagePage() {
   const details = await Promise.all(
     outbreaks.map(async (o) => ({ outbreak: o, teams: await listTeamsByOutbreak(actor, o.id), sites: await listSitesByOutbreak(actor, o.id) })),
   );
-  return <ManageOutbreaks initial={details} />;
+  return <><ManageOutbreaks initial={details} /><InvitePanel /></>;
 }
