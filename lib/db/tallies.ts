@@ -8,7 +8,7 @@ import type { ConflictRecord, TallyRecord } from '@/lib/types/records';
 import { tallyInputSchema, type TallyInput } from '@/lib/validation/tally';
 import { decideTallyDelete, decideTallyUpsert, normaliseValues, type CurrentTally, type TallyConflictReason } from '@/lib/sync/tally-rules';
 import { addDays, daysBetween, isIsoDay, utcToday } from '@/lib/tallies/dates';
-import { CsvTooManyRowsError, parseTallyCsv, serialiseTallyCsv, validateTallyRows, type CsvIssue, type CsvIssueCode } from '@/lib/tallies/csv';
+import { CsvTooManyRowsError, parseTallyCsv, serialiseTallyCsv, validateTallyRows, type CsvIssueCode, type ImportReport } from '@/lib/tallies/csv';
 import type { TALLY_SORT_KEYS } from '@/lib/tallies/query';
 import { db, writeTx } from './connection';
 import { nextChangeSeq } from './counters';
@@ -291,26 +291,6 @@ export async function exportTalliesCsv(actor: Actor, outbreakId: string, filter:
 /** Issues sent back in one answer; the counts per kind cover them all. */
 export const MAX_REPORTED_ISSUES = 2000;
 
-export interface ImportReport {
-  /** Data rows in the file. */
-  rows: number;
-  /** Rows that can be (or were) written. */
-  validCount: number;
-  /** Rows equal to a tally already recorded. */
-  unchangedCount: number;
-  issues: CsvIssue[];
-  issuesTotal: number;
-  /** Issues per kind. */
-  kinds: Partial<Record<CsvIssueCode, number>>;
-  /** Lines with at least one issue. */
-  badLines: number;
-  /** The first valid rows, for the preview. */
-  preview: { line: number; site: string; date: string; newCases: number; recoveries: number | null; deaths: number | null; admissions: number | null; note: string | null }[];
-  /** True when the header lacks a required column. */
-  fatal: boolean;
-  /** Rows written (commit only). */
-  imported?: number;
-}
 
 /** Reserves `n` consecutive change counter values in one statement (import: one per row, in order). */
 async function reserveChangeSeqs(t: Transaction, n: number): Promise<number> {

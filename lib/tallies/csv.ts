@@ -275,3 +275,25 @@ export function serialiseTallyCsv(rows: ReadonlyArray<CsvTally>): string {
   const data = rows.map((r) => [r.siteName, r.date, r.newCases, r.recoveries ?? '', r.deaths ?? '', r.admissions ?? '', r.note ?? '']);
   return Papa.unparse({ fields: [...CSV_COLUMNS], data }, { escapeFormulae: true, newline: '\n' }) + '\n';
 }
+
+/** The answer of an import (preview or commit), as the route sends it. */
+export interface ImportReport {
+  /** Data rows in the file. */
+  rows: number;
+  /** Rows that can be (or were) written. */
+  validCount: number;
+  /** Rows equal to a tally already recorded. */
+  unchangedCount: number;
+  issues: CsvIssue[];
+  issuesTotal: number;
+  /** Issues per kind. */
+  kinds: Partial<Record<CsvIssueCode, number>>;
+  /** Lines with at least one issue. */
+  badLines: number;
+  /** The first valid rows, for the preview. */
+  preview: { line: number; site: string; date: string; newCases: number; recoveries: number | null; deaths: number | null; admissions: number | null; note: string | null }[];
+  /** True when the header lacks a required column. */
+  fatal: boolean;
+  /** Rows written (commit only). */
+  imported?: number;
+}

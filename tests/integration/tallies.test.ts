@@ -25,8 +25,8 @@ async function actorOf(email: string): Promise<Actor> {
 
 beforeAll(async () => {
   await prepare();
-  [field, field2, coordinator, supervisor] = await Promise.all(['field', 'field2', 'coordinator', 'supervisor'].map((u) => actorOf(`${u}@marrowbend.example`)));
-  [fieldCookie, field2Cookie, supervisorCookie, coordinatorCookie] = await Promise.all(['field', 'field2', 'supervisor', 'coordinator'].map((u) => sessionCookie(`${u}@marrowbend.example`)));
+  [field, field2, coordinator, supervisor] = (await Promise.all(['field', 'field2', 'coordinator', 'supervisor'].map((u) => actorOf(`${u}@marrowbend.example`)))) as [Actor, Actor, Actor, Actor];
+  [fieldCookie, field2Cookie, supervisorCookie, coordinatorCookie] = (await Promise.all(['field', 'field2', 'supervisor', 'coordinator'].map((u) => sessionCookie(`${u}@marrowbend.example`)))) as [string, string, string, string];
 });
 
 describe('writes and conflict rules', () => {
