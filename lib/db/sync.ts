@@ -3,7 +3,7 @@
  * pull. Push applies each mutation through the entity's own data function (lib/db/tallies.ts,
  * lib/db/scenarios.ts) with the batch's transaction passed in, so the rules live in one place.
  */
-import { Op, type Transaction, type WhereOptions } from 'sequelize';
+import { Op, QueryTypes, type Transaction, type WhereOptions } from 'sequelize';
 import { AppliedMutation, Device, Outbreak, Scenario, Site, Tally, Team } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize, may } from '@/lib/auth/permissions';
@@ -239,56 +239,67 @@ async function visibleRecord(actor: Actor, entity: string, id: string, t: Transa
   return null;
 }
 
-interface PullSource {
-  entity: PullEntity;
-  fetch: (after: number, limit: number) => Promise<Change[]>;
+const PULL_TABLES: { entity: PullEntity; table: string; scope: 'id' | 'outbreak' | 'site' | 'tally' }[] = [
+  { entity: 'outbreak', table: 'outbreaks', scope: 'id' },
+  { entity: 'team', table: 'teams', scope: 'outbreak' },
+  { entity: 'site', table: 'sites', scope: 'site' },
+  { entity: 'tally', table: 'tallies', scope: 'tally' },
+  { entity: 'scenario', table: 'scenarios', scope: 'outbreak' },
+];
+
+/**
+ * The keys of the next changes after `after` the actor may see, in one statement: each table's
+ * first `limit` rows by change_seq (an index walk), merged. Field officers see their teams' sites
+ * and those sites' tallies only; tombstones are included. Plain SQL that SQLite and PostgreSQL share.
+ */
+async function nextKeys(actor: Actor, after: number, limit: number): Promise<{ entity: PullEntity; id: string; change_seq: number }[]> {
+  const sequelize = await db();
+  const field = actor.role === 'field';
+  if (!actor.outbreakIds.length) return [];
+  const where = (scope: (typeof PULL_TABLES)[number]['scope']) => {
+    const inOutbreak = scope === 'id' ? 'id IN (:outbreakIds)' : 'outbreak_id IN (:outbreakIds)';
+    if (!field) return inOutbreak;
+    if (scope === 'site') return `${inOutbreak} AND team_id IN (:teamIds)`;
+    if (scope === 'tally') return `${inOutbreak} AND site_id IN (SELECT id FROM sites WHERE team_id IN (:teamIds))`;
+    return inOutbreak;
+  };
+  const parts = PULL_TABLES.map(
+    (p, i) => `SELECT * FROM (SELECT '${p.entity}' AS entity, id, change_seq FROM ${p.table} WHERE change_seq > :after AND ${where(p.scope)} ORDER BY change_seq LIMIT :limit) AS p${i}`,
+  );
+  const sql = `SELECT entity, id, change_seq FROM (${parts.join(' UNION ALL ')}) AS u ORDER BY change_seq LIMIT :limit`;
+  const rows = await sequelize.query<{ entity: PullEntity; id: string; change_seq: number | string }>(sql, {
+    type: QueryTypes.SELECT,
+    replacements: { after, limit, outbreakIds: actor.outbreakIds, teamIds: actor.teamIds.length ? actor.teamIds : ['-'] },
+  });
+  return rows.map((r) => ({ entity: r.entity, id: r.id, change_seq: Number(r.change_seq) }));
 }
 
-/** What the actor may see of each synced table, as `where` clauses; tombstones included. */
-async function pullSources(actor: Actor): Promise<PullSource[]> {
-  const outbreakIds = actor.outbreakIds;
-  const field = actor.role === 'field';
-  const seq = (after: number) => ({ changeSeq: { [Op.gt]: after } });
-  let siteIds: string[] | null = null;
-  if (field) {
-    siteIds = (await Site.findAll({ where: { outbreakId: { [Op.in]: outbreakIds }, teamId: { [Op.in]: actor.teamIds } }, attributes: ['id'] })).map((s) => s.id);
+async function loadChanges(keys: { entity: PullEntity; id: string }[]): Promise<Change[]> {
+  const ids = (e: PullEntity) => keys.filter((k) => k.entity === e).map((k) => k.id);
+  const byKey = new Map<string, Change['record']>();
+  const load = async <M extends { id: string }>(e: PullEntity, finder: (ids: string[]) => Promise<M[]>, map: (m: M) => object) => {
+    const list = ids(e);
+    if (!list.length) return;
+    for (const m of await finder(list)) byKey.set(`${e}:${m.id}`, { ...map(m) } as Change['record']);
+  };
+  const where = (list: string[]) => ({ where: { id: { [Op.in]: list } } });
+  await load('outbreak', (l) => Outbreak.findAll(where(l)), toOutbreakRecord);
+  await load('team', (l) => Team.findAll(where(l)), toTeamRecord);
+  await load('site', (l) => Site.findAll(where(l)), toSiteRecord);
+  await load('tally', (l) => Tally.findAll(where(l)), toTallyRecord);
+  await load('scenario', (l) => Scenario.findAll(where(l)), toScenarioRecord);
+  const out: Change[] = [];
+  for (const k of keys) {
+    const record = byKey.get(`${k.entity}:${k.id}`);
+    if (record) out.push({ entity: k.entity, record });
   }
-  const opts = (limit: number) => ({ order: [['changeSeq', 'ASC']] as [string, string][], limit });
-  return [
-    {
-      entity: 'outbreak',
-      fetch: async (after, limit) =>
-        (await Outbreak.findAll({ where: { ...seq(after), id: { [Op.in]: outbreakIds } }, ...opts(limit) })).map((r) => ({ entity: 'outbreak', record: { ...toOutbreakRecord(r) } })),
-    },
-    {
-      entity: 'team',
-      fetch: async (after, limit) =>
-        (await Team.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds } }, ...opts(limit) })).map((r) => ({ entity: 'team', record: { ...toTeamRecord(r) } })),
-    },
-    {
-      entity: 'site',
-      fetch: async (after, limit) =>
-        (await Site.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds }, ...(field ? { teamId: { [Op.in]: actor.teamIds } } : {}) }, ...opts(limit) }))
-          .map((r) => ({ entity: 'site', record: { ...toSiteRecord(r) } })),
-    },
-    {
-      entity: 'tally',
-      fetch: async (after, limit) =>
-        (await Tally.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds }, ...(siteIds ? { siteId: { [Op.in]: siteIds } } : {}) }, ...opts(limit) }))
-          .map((r) => ({ entity: 'tally', record: { ...toTallyRecord(r) } })),
-    },
-    {
-      entity: 'scenario',
-      fetch: async (after, limit) =>
-        (await Scenario.findAll({ where: { ...seq(after), outbreakId: { [Op.in]: outbreakIds } }, ...opts(limit) })).map((r) => ({ entity: 'scenario', record: { ...toScenarioRecord(r) } })),
-    },
-  ];
+  return out;
 }
 
 /**
  * One page of the changes the actor may see after `cursor`, in server order (changeSeq) across the
- * synced tables. Each table is asked for `limit + 1` rows, so the first `limit` of the merge are
- * exactly the next `limit` changes overall.
+ * synced tables. Each table gives at most `limit + 1` keys, so the first `limit` of the merge are
+ * exactly the next `limit` changes overall; `more` says whether there is a next page.
  */
 export async function pullChanges(actor: Actor, q: { cursor?: number; limit?: number; deviceId?: string | null }): Promise<PullResponse> {
   authorize(actor, 'sync:pull');
@@ -296,12 +307,12 @@ export async function pullChanges(actor: Actor, q: { cursor?: number; limit?: nu
   const started = performance.now();
   const cursor = q.cursor ?? 0;
   const limit = Math.min(Math.max(1, q.limit ?? DEFAULT_PULL_LIMIT), MAX_PULL_LIMIT);
-  const sources = await pullSources(actor);
-  const all = (await Promise.all(sources.map((s) => s.fetch(cursor, limit + 1)))).flat();
-  all.sort((a, b) => a.record.changeSeq - b.record.changeSeq);
-  const changes = all.slice(0, limit);
-  const more = all.length > limit;
-  const next = changes.length ? changes[changes.length - 1]!.record.changeSeq : cursor;
+  const keys = await nextKeys(actor, cursor, limit + 1);
+  const page = keys.slice(0, limit);
+  const more = keys.length > limit;
+  const changes = await loadChanges(page);
+  // The cursor follows the keys, so a row changed again since the key was read cannot stall it.
+  const next = page.length ? page[page.length - 1]!.change_seq : cursor;
   // The device id comes from the client as a hint for the ledger; only a device of this user is named.
   let deviceId: string | null = null;
   if (q.deviceId) {
