@@ -1,0 +1,67 @@
+'use client';
+import { useMemo } from 'react';
+import uPlot from 'uplot';
+import { palette } from '@/tailwind.config';
+import { UplotChart } from './uplot-chart';
+import { dayAxis, daySeries, line, valueAxis } from './chart-theme';
+
+export interface FitChartProps {
+  /** The fitted curve on every day 0..last observed day. */
+  trajectory: { t: Float64Array; value: Float64Array };
+  /** Observed days and counts. */
+  day: number[];
+  observed: number[];
+  residual: number[];
+  residualKind: 'pearson' | 'raw';
+  startDate?: string | null;
+}
+
+const bars = () => uPlot.paths.bars!({ size: [0.7, 24] });
+
+/** The observed tallies (bars) drawn over the fitted curve, and the residuals below on the same days. */
+export function FitChart({ trajectory, day, observed, residual, residualKind, startDate }: FitChartProps) {
+  const mainOptions = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      scales: { x: { time: false } },
+      axes: [dayAxis(startDate), valueAxis('new cases per day')],
+      series: [
+        daySeries(startDate),
+        line('observed tallies', { stroke: palette.ink, width: 1 }, { fill: 'rgba(29, 36, 51, 0.28)', paths: bars() }),
+        line('fitted model', { stroke: palette.infectious, width: 3 }),
+      ],
+    }),
+    [startDate],
+  );
+  const resOptions = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      scales: { x: { time: false } },
+      axes: [dayAxis(startDate), valueAxis(residualKind === 'pearson' ? 'residual (sd)' : 'residual (cases)')],
+      series: [
+        daySeries(startDate),
+        line('residual', { stroke: palette.removed, width: 1 }, { fill: 'rgba(74, 90, 156, 0.45)', paths: bars() }),
+      ],
+      legend: { show: false },
+    }),
+    [startDate, residualKind],
+  );
+  const mainData = useMemo(() => {
+    const obs: (number | null)[] = Array.from(trajectory.t, () => null);
+    day.forEach((d, i) => {
+      if (d >= 0 && d < obs.length) obs[d] = observed[i] ?? null;
+    });
+    return [trajectory.t, obs, trajectory.value] as uPlot.AlignedData;
+  }, [trajectory, day, observed]);
+  const resData = useMemo(() => {
+    const res: (number | null)[] = Array.from(trajectory.t, () => null);
+    day.forEach((d, i) => {
+      if (d >= 0 && d < res.length) res[d] = residual[i] ?? null;
+    });
+    return [trajectory.t, res] as uPlot.AlignedData;
+  }, [trajectory, day, residual]);
+  return (
+    <div className="flex flex-col gap-1">
+      <UplotChart options={mainOptions} data={mainData} height={280} testId="fit-chart" label="Observed daily tallies as bars with the fitted model as a line" />
+      <UplotChart options={resOptions} data={resData} height={130} testId="residual-chart" label="Residuals of the fit on each observed day" />
+    </div>
+  );
+}
