@@ -73,7 +73,44 @@ export function toAppError(err: unknown): AppError {
       fields: e.field ? { [e.field]: e.message } : undefined,
     });
   }
+  // PostgreSQL refuses a malformed UUID in a lookup (SQLSTATE 22P02) where SQLite just finds no
+  // row: an id from the path that is not a UUID names no record, so answer as SQLite does.
+  if (driverError(err, (c, m) => c === '22P02' && /uuid/i.test(m))) return new AppError('not_found', 'Nothing was found with this id.');
+  const storage = storageFault(err);
+  if (storage) return new AppError('unavailable', storage, { detail: { retryable: true } });
   return new AppError('internal', 'Something went wrong on the server. The request was not applied.');
+}
+
+/**
+ * Database conditions that are the server's state, not the request's fault: the client should
+ * keep its data (the outbox does) and retry later. The transaction was rolled back, so nothing
+ * of the request was applied. Codes: sqlite3's `SQLITE_*`; PostgreSQL SQLSTATE 53100 disk_full,
+ * 53200 out_of_memory, 25006 read_only_sql_transaction, 57P01-57P03 shutdown, 08xxx connection.
+ */
+const STORAGE_FAULTS: Array<[RegExp, string]> = [
+  [/^(SQLITE_READONLY|25006)$/, 'The database is read-only at the moment. Nothing was saved; try again later (your device keeps its changes).'],
+  [/^(SQLITE_FULL|53100)$/, 'The server is out of disk space. Nothing was saved; try again later (your device keeps its changes).'],
+  [/^(SQLITE_BUSY|SQLITE_LOCKED|55P03|40P01)$/, 'The database is busy. Nothing was saved; try again in a moment.'],
+  [/^(SQLITE_IOERR|SQLITE_CANTOPEN|53200|57P0[123]|08\w{3})$/, 'The database is not reachable at the moment. Nothing was saved; try again later.'],
+];
+
+type DriverError = { code?: unknown; message?: unknown; parent?: unknown; original?: unknown; name?: unknown };
+
+/** True when `err` or an error it wraps (Sequelize's `parent`/`original`) matches. */
+function driverError(err: unknown, match: (code: string, message: string, name: string) => boolean): boolean {
+  const seen = new Set<unknown>();
+  for (let e = err as DriverError | undefined; e && typeof e === 'object' && !seen.has(e); e = (e.parent ?? e.original) as DriverError | undefined) {
+    seen.add(e);
+    if (match(typeof e.code === 'string' ? e.code : '', typeof e.message === 'string' ? e.message : '', typeof e.name === 'string' ? e.name : '')) return true;
+  }
+  return false;
+}
+
+function storageFault(err: unknown): string | null {
+  for (const [re, message] of STORAGE_FAULTS) if (driverError(err, (code) => re.test(code))) return message;
+  const connection = /^Sequelize(Connection|ConnectionRefused|ConnectionAcquireTimeout|HostNotReachable)Error$/;
+  if (driverError(err, (_c, _m, name) => connection.test(name))) return 'The database is not reachable at the moment. Nothing was saved; try again later.';
+  return null;
 }
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
@@ -104,12 +141,28 @@ export async function readJson<B>(req: Request, schema: z.ZodType<B>, maxBytes =
   let data: unknown;
   try {
     data = JSON.parse(text);
-  } catch {
-    throw new AppError('invalid_json', 'The body is not valid JSON.');
+  } catch (e) {
+    // The parser's own words point at the spot (e.g. a bare NaN); JSON has no NaN or Infinity.
+    const where = e instanceof SyntaxError ? e.message.slice(0, 160) : 'unreadable';
+    throw new AppError('invalid_json', `The body is not valid JSON (${where}). Numbers must be finite: JSON has no NaN or Infinity.`);
   }
   const parsed = schema.safeParse(data);
-  if (!parsed.success) throw validationError(parsed.error.issues);
+  if (!parsed.success) throw validationError(perKeyIssues(parsed.error.issues));
   return parsed.data;
+}
+
+type Issue = { path: ReadonlyArray<PropertyKey>; message: string; code?: string; keys?: readonly string[] };
+
+/**
+ * zod reports unknown keys of a strict object as one issue at the object's path; split it so that
+ * `fields` names each key (`__proto__`, `isAdmin`), which is what the client needs to fix.
+ */
+function perKeyIssues(issues: ReadonlyArray<Issue>): Issue[] {
+  return issues.flatMap((i) =>
+    i.code === 'unrecognized_keys' && i.keys?.length
+      ? i.keys.map((k) => ({ path: [...i.path, k], message: 'Not a field of this request.' }))
+      : [i],
+  );
 }
 
 const tooLarge = (max: number) =>
@@ -138,6 +191,6 @@ function parseQuery<Q>(req: NextRequest, schema: z.ZodType<Q>): Q {
   const obj: Record<string, string> = {};
   for (const [k, v] of req.nextUrl.searchParams) obj[k] = v;
   const parsed = schema.safeParse(obj);
-  if (!parsed.success) throw validationError(parsed.error.issues, 'Some query parameters are not valid.');
+  if (!parsed.success) throw validationError(perKeyIssues(parsed.error.issues), 'Some query parameters are not valid.');
   return parsed.data;
 }

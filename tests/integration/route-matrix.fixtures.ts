@@ -61,7 +61,7 @@ export const PNG_BYTES = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1
 export async function multipart(fields: Record<string, string>, file?: { name: string; bytes: Uint8Array; type?: string }): Promise<RawBody> {
   const form = new FormData();
   for (const [k, v] of Object.entries(fields)) form.set(k, v);
-  if (file) form.set('file', new Blob([file.bytes], { type: file.type ?? 'application/octet-stream' }), file.name);
+  if (file) form.set('file', new Blob([new Uint8Array(file.bytes)], { type: file.type ?? 'application/octet-stream' }), file.name);
   const req = new Request('http://form.invalid/', { method: 'POST', body: form });
   return { body: new Uint8Array(await req.arrayBuffer()), contentType: req.headers.get('content-type')! };
 }
