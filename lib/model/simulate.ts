@@ -15,11 +15,11 @@
  * Any output with a compartment below −1e-9·N still gets a 'negative_compartment' warning.
  */
 import { ModelError } from './errors';
-import { dopri5Interval, Dopri5State, type StepSink } from './dopri5';
+import { DOPRI5_INTERVAL, Dopri5State, type AdaptiveInterval, type StepSink } from './dopri5';
 import {
-  eulerSEIR, eulerSIR, eulerSIRS, initPeak, rhsSEIR, rhsSIR, rhsSIRS, rk4SEIR, rk4SIR, rk4SIRS,
+  eulerSEIR, eulerSIR, eulerSIRS, initPeak, rk4SEIR, rk4SIR, rk4SIRS,
   PK_LEN, PK_PENDING, P_BN, P_G, P_LEN, P_N, P_NU, P_OM, P_SIG, Y_C, Y_E, Y_I, Y_LEN, Y_R, Y_S, Y_V,
-  type Kernel, type Rhs,
+  type Kernel,
 } from './kernels';
 import { refinePeak, type Peak } from './peak';
 import { scenarioInputSchema } from '../validation/scenario';
@@ -28,11 +28,11 @@ import type { ModelKind, Run, RunWarning, ScenarioInput } from './types';
 /** RK4's stability interval on the negative real axis is (−2.7853, 0); keep a hair inside it. */
 export const RK4_STABILITY = 2.785;
 
-const KERNELS: Record<'euler' | 'rk4', Record<ModelKind, Kernel>> = {
+export const KERNELS: Record<'euler' | 'rk4', Record<ModelKind, Kernel>> = {
   euler: { SIR: eulerSIR, SEIR: eulerSEIR, SIRS: eulerSIRS },
   rk4: { SIR: rk4SIR, SEIR: rk4SEIR, SIRS: rk4SIRS },
 };
-const RHS: Record<ModelKind, Rhs> = { SIR: rhsSIR, SEIR: rhsSEIR, SIRS: rhsSIRS };
+const ADAPTIVE: Record<ModelKind, AdaptiveInterval> = DOPRI5_INTERVAL;
 
 /** Validates untrusted input; throws ModelError('invalid_input') naming every failing field path. */
 export function parseScenarioInput(raw: unknown): ScenarioInput {
@@ -103,7 +103,7 @@ export function largestSafeStep(input: ScenarioInput): number {
   return input.method === 'euler' ? 1 / m : RK4_STABILITY / m;
 }
 
-function checkStep(input: ScenarioInput): void {
+export function checkStep(input: ScenarioInput): void {
   const safe = largestSafeStep(input);
   if (input.step <= safe) return;
   const fmt = (x: number) => Number(x.toPrecision(4));
@@ -122,7 +122,6 @@ function checkStep(input: ScenarioInput): void {
 // property reads on the other module's exports object, which the per-output path should not pay.
 const iS = Y_S, iE = Y_E, iI = Y_I, iR = Y_R, iV = Y_V, iC = Y_C;
 const pBN = P_BN, pNU = P_NU;
-const advanceAdaptive = dopri5Interval;
 
 /** Growable output columns (people), one row per output time. */
 class Recorder implements StepSink {
@@ -189,18 +188,11 @@ export interface SimulationResult {
   peak: Peak;
 }
 
-/** Integrates an already validated input. */
-export function simulateParsed(input: ScenarioInput): SimulationResult {
-  checkStep(input);
-  const { model, population: N, days, step: h, method } = input;
-  const daily = (input.record ?? 'daily') === 'daily';
-  const { beta, gamma } = input.params;
-  const sigma = input.params.sigma ?? 0;
-  const omega = input.params.omega ?? 0;
-
-  const y = new Float64Array(Y_LEN);
+/** Writes the state at t = 0 (people) into y: S = N − I − E − R, then the vaccinated-at-start share of S moved to V. */
+export function initialStateInto(y: Float64Array, input: ScenarioInput): void {
+  const N = input.population;
   const I0 = input.initial.I;
-  const E0 = model === 'SEIR' ? (input.initial.E ?? 0) : 0;
+  const E0 = input.model === 'SEIR' ? (input.initial.E ?? 0) : 0;
   const R0 = input.initial.R ?? 0;
   const Sraw = Math.max(0, N - I0 - E0 - R0);
   const V0 = (input.vaccination?.atStart ?? 0) * Sraw;
@@ -210,6 +202,46 @@ export function simulateParsed(input: ScenarioInput): SimulationResult {
   y[Y_R] = R0;
   y[Y_V] = V0;
   y[Y_C] = 0;
+}
+
+/** Constant-rate segments between switches: end (days), β/N (per person per day) and ν (per day) of each. */
+export interface Segments {
+  nSeg: number;
+  segEnd: Float64Array;
+  segBN: Float64Array;
+  segNU: Float64Array;
+}
+
+/** The segments of `input` for its sorted switch times, rates computed once (at each midpoint). */
+export function segmentsOf(input: ScenarioInput, switches: readonly number[]): Segments {
+  const { population: N, days } = input;
+  const beta = input.params.beta;
+  const nSeg = switches.length + 1;
+  const segEnd = new Float64Array(nSeg);
+  const segBN = new Float64Array(nSeg);
+  const segNU = new Float64Array(nSeg);
+  for (let i = 0; i < nSeg; i++) {
+    const a = i === 0 ? 0 : (switches[i - 1] as number);
+    const b = i === nSeg - 1 ? days : (switches[i] as number);
+    const mid = 0.5 * (a + b);
+    segEnd[i] = b;
+    segBN[i] = (beta * contactFactor(input, mid)) / N;
+    segNU[i] = vaccinationRate(input, mid);
+  }
+  return { nSeg, segEnd, segBN, segNU };
+}
+
+/** Integrates an already validated input. */
+export function simulateParsed(input: ScenarioInput): SimulationResult {
+  checkStep(input);
+  const { model, population: N, days, step: h, method } = input;
+  const daily = (input.record ?? 'daily') === 'daily';
+  const { gamma } = input.params;
+  const sigma = input.params.sigma ?? 0;
+  const omega = input.params.omega ?? 0;
+
+  const y = new Float64Array(Y_LEN);
+  initialStateInto(y, input);
 
   const switches = switchTimes(input);
   const cap = daily ? days + 1 : method === 'dopri5' ? 4 * days + 16 : Math.ceil(days / h) + days + 2 * switches.length + 2;
@@ -226,23 +258,11 @@ export function simulateParsed(input: ScenarioInput): SimulationResult {
   const kern = method === 'dopri5' ? null : KERNELS[method][model];
   const dp =
     method === 'dopri5' ? new Dopri5State(h, input.tolerance ?? 1e-8, input.tolerance ?? 1e-8) : null;
-  const rhs = RHS[model];
+  const adaptive = ADAPTIVE[model];
   const sink = daily ? null : rec;
   const thr = 1e-9 * h;
 
-  // Constant-rate segments between switches, their rates computed once (at each midpoint).
-  const nSeg = switches.length + 1;
-  const segEnd = new Float64Array(nSeg);
-  const segBN = new Float64Array(nSeg);
-  const segNU = new Float64Array(nSeg);
-  for (let i = 0; i < nSeg; i++) {
-    const a = i === 0 ? 0 : (switches[i - 1] as number);
-    const b = i === nSeg - 1 ? days : (switches[i] as number);
-    const mid = 0.5 * (a + b);
-    segEnd[i] = b;
-    segBN[i] = (beta * contactFactor(input, mid)) / N;
-    segNU[i] = vaccinationRate(input, mid);
-  }
+  const { nSeg, segEnd, segBN, segNU } = segmentsOf(input, switches);
 
   let seg = 0;
   if (dp && daily) {
@@ -251,7 +271,7 @@ export function simulateParsed(input: ScenarioInput): SimulationResult {
     for (let i = 0; i < nSeg; i++) {
       p[pBN] = segBN[i] as number;
       p[pNU] = segNU[i] as number;
-      advanceAdaptive(dp, rhs, y, p, i === 0 ? 0 : (segEnd[i - 1] as number), segEnd[i] as number, pk, null, rec);
+      adaptive(dp, y, p, i === 0 ? 0 : (segEnd[i - 1] as number), segEnd[i] as number, pk, null, rec);
     }
   }
   for (let d = 0; d < days && !(dp && daily); d++) {
@@ -264,7 +284,7 @@ export function simulateParsed(input: ScenarioInput): SimulationResult {
       p[pBN] = segBN[seg] as number;
       p[pNU] = segNU[seg] as number;
       if (dp) {
-        advanceAdaptive(dp, rhs, y, p, a, b, pk, sink);
+        adaptive(dp, y, p, a, b, pk, sink, null);
       } else if (kern) {
         const L = b - a;
         const n = Math.floor(L / h + 1e-9);
