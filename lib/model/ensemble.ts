@@ -6,12 +6,30 @@
  * - `ensembleFromSamples` takes explicit parameter sets (e.g. draws from a Fit's uncertainty).
  * Both share the reduction. Every run is recorded daily whatever `record` says, so all share `t`.
  * Percentiles interpolate linearly between order statistics (the "type 7" rule).
+ *
+ * Fast path (euler, rk4): members are integrated straight into the band matrices with preallocated
+ * state, computing only what the bands need (I, incidence, beds, peak), never a Run; RK4 members go
+ * two at a time through the two-lane kernels of lanes.ts. Each member follows simulate()'s day loop and
+ * kernels exactly, so its numbers are bit-identical to simulate()'s (tests/unit/model/fast-paths.test.ts).
+ * dopri5 members go through the driver itself.
  */
 import { ModelError } from './errors';
+import { PK_LEN, P_BN, P_G, P_LEN, P_N, P_NU, P_OM, P_SIG, Y_C, Y_I, Y_LEN, initPeak, type Kernel } from './kernels';
+import { rk4SEIR2, rk4SIR2, rk4SIRS2, type Kernel2 } from './lanes';
+import { refinePeak } from './peak';
 import { latinHypercube, mulberry32 } from './random';
-import { parseScenarioInput, simulateParsed } from './simulate';
-import { bedDemand } from './summary';
-import type { EnsembleResult, ParamRanges, ParamSample, Percentiles, ProgressCallback, ScenarioInput } from './types';
+import {
+  KERNELS, checkStep, initialStateInto, parseScenarioInput, segmentsOf, simulateParsed, switchTimes, type Segments,
+} from './simulate';
+import { bedDemandInto } from './summary';
+import type {
+  EnsembleResult, ModelKind, ParamRanges, ParamSample, Percentiles, ProgressCallback, ScenarioInput,
+} from './types';
+
+// Module-local copies: transpiled to CommonJS (tsx), an imported binding is a getter call per use.
+const iI = Y_I, iC = Y_C, pBN = P_BN, pNU = P_NU;
+
+const LANES2: Record<ModelKind, Kernel2> = { SIR: rk4SIR2, SEIR: rk4SEIR2, SIRS: rk4SIRS2 };
 
 /** Paths an ensemble may vary (dot-joined, as in ScenarioInput). */
 export const ENSEMBLE_PATH =
@@ -89,7 +107,14 @@ function scalarBands(values: Float64Array): Percentiles<number> {
   };
 }
 
-/** Bands of a time-major matrix m[k·runs + r]; sorts each time's slice in place. */
+/**
+ * Bands of a time-major matrix m[k·runs + r]. The runs' order changes little from one day to the next,
+ * so each day's values are gathered in the previous day's sorted order and finished by insertion sort
+ * (cost ~ runs + the number of order changes, against runs·log runs for a fresh sort). A day that
+ * reorders wholesale (day 1, when every run starts alike) stops the insertion sort after a budget of
+ * moves and is merge-sorted instead; a day with a non-finite value gets the typed-array sort (NaN last)
+ * that the plain per-day sort gave. Every path yields the same sorted values, hence the same bands.
+ */
 function seriesBands(m: Float64Array, times: number, runs: number): Percentiles<Float64Array> {
   const out: Percentiles<Float64Array> = {
     p5: new Float64Array(times),
@@ -98,16 +123,202 @@ function seriesBands(m: Float64Array, times: number, runs: number): Percentiles<
     p75: new Float64Array(times),
     p95: new Float64Array(times),
   };
+  const order = new Uint32Array(runs);
+  for (let j = 0; j < runs; j++) order[j] = j;
+  const v = new Float64Array(runs);
+  const tmpV = new Float64Array(runs);
+  const tmpO = new Uint32Array(runs);
+  const budget = 8 * runs;
   for (let k = 0; k < times; k++) {
     const off = k * runs;
-    m.subarray(off, off + runs).sort();
-    out.p5[k] = quantileSorted(m, off, runs, Q[0]);
-    out.p25[k] = quantileSorted(m, off, runs, Q[1]);
-    out.p50[k] = quantileSorted(m, off, runs, Q[2]);
-    out.p75[k] = quantileSorted(m, off, runs, Q[3]);
-    out.p95[k] = quantileSorted(m, off, runs, Q[4]);
+    let finite = true;
+    for (let j = 0; j < runs; j++) {
+      const x = m[off + (order[j] as number)] as number;
+      v[j] = x;
+      if (x - x !== 0) finite = false;
+    }
+    if (!finite) v.sort();
+    else if (!insertionSort(v, order, 0, runs, budget)) mergeSort(v, order, tmpV, tmpO);
+    out.p5[k] = quantileSorted(v, 0, runs, Q[0]);
+    out.p25[k] = quantileSorted(v, 0, runs, Q[1]);
+    out.p50[k] = quantileSorted(v, 0, runs, Q[2]);
+    out.p75[k] = quantileSorted(v, 0, runs, Q[3]);
+    out.p95[k] = quantileSorted(v, 0, runs, Q[4]);
   }
   return out;
+}
+
+/**
+ * Sorts v[lo..hi) ascending (finite values), moving `order` along. Returns false, with v and order
+ * still paired, once more than `budget` moves have been made.
+ */
+function insertionSort(v: Float64Array, order: Uint32Array, lo: number, hi: number, budget: number): boolean {
+  let moves = 0;
+  for (let j = lo + 1; j < hi; j++) {
+    const x = v[j] as number;
+    if (!((v[j - 1] as number) > x)) continue;
+    const o = order[j] as number;
+    let i = j;
+    while (i > lo && (v[i - 1] as number) > x) {
+      v[i] = v[i - 1] as number;
+      order[i] = order[i - 1] as number;
+      i--;
+    }
+    v[i] = x;
+    order[i] = o;
+    moves += j - i;
+    if (moves > budget) return false;
+  }
+  return true;
+}
+
+/** Bottom-up merge sort of v (finite values) carrying `order`; tmpV/tmpO are scratch of the same length. */
+function mergeSort(v: Float64Array, order: Uint32Array, tmpV: Float64Array, tmpO: Uint32Array): void {
+  const n = v.length;
+  const BLOCK = 16;
+  for (let lo = 0; lo < n; lo += BLOCK) insertionSort(v, order, lo, Math.min(n, lo + BLOCK), Infinity);
+  let srcV = v, srcO = order, dstV = tmpV, dstO = tmpO;
+  for (let w = BLOCK; w < n; w *= 2) {
+    for (let lo = 0; lo < n; lo += 2 * w) {
+      const mid = Math.min(n, lo + w);
+      const hi = Math.min(n, lo + 2 * w);
+      let i = lo;
+      let j = mid;
+      let k = lo;
+      while (i < mid && j < hi) {
+        if ((srcV[j] as number) < (srcV[i] as number)) {
+          dstV[k] = srcV[j] as number;
+          dstO[k++] = srcO[j++] as number;
+        } else {
+          dstV[k] = srcV[i] as number;
+          dstO[k++] = srcO[i++] as number;
+        }
+      }
+      while (i < mid) {
+        dstV[k] = srcV[i] as number;
+        dstO[k++] = srcO[i++] as number;
+      }
+      while (j < hi) {
+        dstV[k] = srcV[j] as number;
+        dstO[k++] = srcO[j++] as number;
+      }
+    }
+    const sv = srcV, so = srcO;
+    srcV = dstV;
+    srcO = dstO;
+    dstV = sv;
+    dstO = so;
+  }
+  if (srcV !== v) {
+    v.set(srcV);
+    order.set(srcO);
+  }
+}
+
+/** Preallocated state of one member on the fast path. */
+class Lane {
+  readonly y = new Float64Array(Y_LEN);
+  readonly p = new Float64Array(P_LEN);
+  readonly pk = new Float64Array(PK_LEN);
+  input: ScenarioInput | null = null;
+  switches: number[] = [];
+  seg: Segments | null = null;
+  /** Member index (column of the band matrices). */
+  r = 0;
+  /** Cumulative infections at the last recorded day, people. */
+  cPrev = 0;
+
+  /** Loads a validated, step-checked member exactly as simulateParsed sets up its run. */
+  load(input: ScenarioInput, r: number): void {
+    this.input = input;
+    this.r = r;
+    initialStateInto(this.y, input);
+    initPeak(this.pk, this.y);
+    const p = this.p;
+    p[P_N] = input.population;
+    p[P_G] = input.params.gamma;
+    p[P_SIG] = input.params.sigma ?? 0;
+    p[P_OM] = input.params.omega ?? 0;
+    this.switches = switchTimes(input);
+    this.seg = segmentsOf(input, this.switches);
+    this.cPrev = 0;
+  }
+}
+
+const sameTimes = (a: readonly number[], b: readonly number[]) => a.length === b.length && a.every((x, i) => x === b[i]);
+
+/**
+ * simulate()'s daily fixed-step loop for one member (B null) or two with the same switch times,
+ * writing I and incidence of each whole day into column r of the time-major matrices. Pieces where a
+ * lane vaccinates run each lane through its kernels.ts kernel (the two-lane kernels have no ν term).
+ * For SIR and SEIR y[Y_R] is not kept up to date (see lanes.ts); nothing here reads it.
+ */
+function integrateDaily(
+  A: Lane,
+  B: Lane | null,
+  kern: Kernel,
+  kern2: Kernel2 | null,
+  h: number,
+  days: number,
+  Im: Float64Array,
+  incM: Float64Array,
+  count: number,
+): void {
+  const sa = A.seg as Segments;
+  const sb = B ? (B.seg as Segments) : sa;
+  const { nSeg, segEnd } = sa;
+  const yA = A.y, pA = A.p, pkA = A.pk;
+  const yB = B ? B.y : yA, pB = B ? B.p : pA, pkB = B ? B.pk : pkA;
+  const two = B !== null && kern2 !== null;
+  const thr = 1e-9 * h;
+  Im[A.r] = yA[iI] as number;
+  incM[A.r] = 0;
+  if (B) {
+    Im[B.r] = yB[iI] as number;
+    incM[B.r] = 0;
+  }
+  let seg = 0;
+  for (let d = 0; d < days; d++) {
+    let a = d;
+    const dayEnd = d + 1;
+    while (a < dayEnd) {
+      while (seg < nSeg - 1 && (segEnd[seg] as number) <= a) seg++;
+      const se = segEnd[seg] as number;
+      const b = se < dayEnd ? se : dayEnd;
+      pA[pBN] = sa.segBN[seg] as number;
+      pA[pNU] = sa.segNU[seg] as number;
+      pB[pBN] = sb.segBN[seg] as number;
+      pB[pNU] = sb.segNU[seg] as number;
+      const L = b - a;
+      const n = Math.floor(L / h + 1e-9);
+      const r = L - n * h;
+      const tail = r > thr;
+      if (two && pA[pNU] === 0 && pB[pNU] === 0) {
+        const k2 = kern2 as Kernel2;
+        if (n > 0) k2(yA, pA, pkA, yB, pB, pkB, a, h, n);
+        if (tail) k2(yA, pA, pkA, yB, pB, pkB, a + n * h, r, 1);
+      } else {
+        if (n > 0) kern(yA, pA, a, h, n, pkA);
+        if (tail) kern(yA, pA, a + n * h, r, 1, pkA);
+        if (B) {
+          if (n > 0) kern(yB, pB, a, h, n, pkB);
+          if (tail) kern(yB, pB, a + n * h, r, 1, pkB);
+        }
+      }
+      a = b;
+    }
+    const row = dayEnd * count;
+    Im[row + A.r] = yA[iI] as number;
+    const cA = yA[iC] as number;
+    incM[row + A.r] = cA - A.cPrev;
+    A.cPrev = cA;
+    if (B) {
+      Im[row + B.r] = yB[iI] as number;
+      const cB = yB[iC] as number;
+      incM[row + B.r] = cB - B.cPrev;
+      B.cPrev = cB;
+    }
+  }
 }
 
 /** Runs `count` variants of `input`, the i-th with `sampleAt(i)` applied, and reduces them. */
@@ -122,62 +333,104 @@ function runEnsemble(
   }
   const base = parseScenarioInput(input);
   const daily: ScenarioInput = { ...base, record: 'daily' };
-  const times = base.days + 1;
+  const { days, model, method, step: h } = base;
+  const times = days + 1;
+  const t = new Float64Array(times);
+  for (let k = 0; k < times; k++) t[k] = k;
   const Im = new Float64Array(times * count);
   const incM = new Float64Array(times * count);
   const cap = base.capacity;
   const bedM = cap ? new Float64Array(times * count) : null;
+  const incRow = new Float64Array(times);
+  const bedRow = new Float64Array(times);
   const peakDay = new Float64Array(count);
   const peakI = new Float64Array(count);
   const exceeded = cap ? new Float64Array(count) : null;
-  let t: Float64Array | null = null;
   const every = Math.max(1, Math.floor(count / 50));
+  const kern = method === 'dopri5' ? null : KERNELS[method][model];
+  const kern2 = method === 'rk4' ? LANES2[model] : null;
+  const lanes = [new Lane(), new Lane()] as const;
 
-  for (let r = 0; r < count; r++) {
+  const variantAt = (r: number): ScenarioInput => {
     const sample = sampleAt(r);
-    let variant = daily;
     const keys = Object.keys(sample);
-    if (keys.length > 0) {
-      const copy = cloneInput(daily) as unknown as Record<string, unknown>;
-      for (const key of keys) {
-        const where = `samples.${r}.${key}`;
-        checkPath(key, where);
-        const v = sample[key];
-        if (typeof v !== 'number' || !Number.isFinite(v)) {
-          throw new ModelError('invalid_range', `${where}: must be a finite number`, { field: where });
-        }
-        setPath(copy, key, v, where);
+    if (keys.length === 0) return daily;
+    const copy = cloneInput(daily) as unknown as Record<string, unknown>;
+    for (const key of keys) {
+      const where = `samples.${r}.${key}`;
+      checkPath(key, where);
+      const v = sample[key];
+      if (typeof v !== 'number' || !Number.isFinite(v)) {
+        throw new ModelError('invalid_range', `${where}: must be a finite number`, { field: where });
       }
-      variant = parseScenarioInput(copy);
+      setPath(copy, key, v, where);
     }
-    const { run, peak } = simulateParsed(variant);
-    if (!t) t = run.t;
-    const I = run.I;
-    const inc = run.incidence;
-    for (let k = 0; k < times; k++) {
-      Im[k * count + r] = I[k] as number;
-      incM[k * count + r] = inc[k] as number;
-    }
+    return parseScenarioInput(copy);
+  };
+
+  // Peak, beds and progress of member r once its I and incidence columns are written.
+  const finish = (r: number, variant: ScenarioInput, peak: { day: number; infectious: number }) => {
     peakDay[r] = peak.day;
     peakI[r] = peak.infectious;
     if (bedM && exceeded) {
       const vc = variant.capacity ?? cap;
       if (vc) {
-        const B = bedDemand(run.t, inc, vc.admissionFraction, vc.lengthOfStay);
+        for (let k = 0; k < times; k++) incRow[k] = incM[k * count + r] as number;
+        const B = bedDemandInto(bedRow, t, incRow, vc.admissionFraction, vc.lengthOfStay);
         let first = Infinity;
         for (let k = 0; k < times; k++) {
           const b = B[k] as number;
           bedM[k * count + r] = b;
-          if (first === Infinity && b > vc.beds) first = run.t[k] as number;
+          if (first === Infinity && b > vc.beds) first = t[k] as number;
         }
         exceeded[r] = first;
       }
     }
     if (onProgress && ((r + 1) % every === 0 || r + 1 === count)) onProgress(r + 1, count);
+  };
+  const finishLane = (lane: Lane) => {
+    const v = lane.input as ScenarioInput;
+    finish(lane.r, v, refinePeak(lane.pk, model, v.params.gamma, v.params.sigma ?? 0));
+  };
+
+  let waiting = false;
+  for (let r = 0; r < count; r++) {
+    const variant = variantAt(r);
+    if (!kern) {
+      const { run, peak } = simulateParsed(variant);
+      const I = run.I;
+      const inc = run.incidence;
+      for (let k = 0; k < times; k++) {
+        Im[k * count + r] = I[k] as number;
+        incM[k * count + r] = inc[k] as number;
+      }
+      finish(r, variant, peak);
+      continue;
+    }
+    checkStep(variant);
+    if (!waiting) {
+      lanes[0].load(variant, r);
+      waiting = true;
+      if (r + 1 < count) continue;
+      integrateDaily(lanes[0], null, kern, null, h, days, Im, incM, count);
+      finishLane(lanes[0]);
+    } else {
+      lanes[1].load(variant, r);
+      waiting = false;
+      const [A, B] = lanes;
+      if (sameTimes(A.switches, B.switches)) {
+        integrateDaily(A, B, kern, kern2, h, days, Im, incM, count);
+      } else {
+        integrateDaily(A, null, kern, null, h, days, Im, incM, count);
+        integrateDaily(B, null, kern, null, h, days, Im, incM, count);
+      }
+      finishLane(A);
+      finishLane(B);
+    }
   }
 
   const result: EnsembleResult = {
-    t: t ?? new Float64Array(0),
+    t,
     bands: { I: seriesBands(Im, times, count), incidence: seriesBands(incM, times, count) },
     peakDay: scalarBands(peakDay),
     peakInfectious: scalarBands(peakI),

@@ -64,7 +64,18 @@ export function growthRate(input: ScenarioInput, S0: number): number {
  * over each output interval (its integral is the interval's incidence), solved exactly per interval.
  */
 export function bedDemand(t: Float64Array, incidence: Float64Array, admissionFraction: number, lengthOfStay: number): Float64Array {
-  const B = new Float64Array(t.length);
+  return bedDemandInto(new Float64Array(t.length), t, incidence, admissionFraction, lengthOfStay);
+}
+
+/** bedDemand written into `B` (length t.length, beds); returns B. Ensembles reuse one buffer. */
+export function bedDemandInto(
+  B: Float64Array,
+  t: ArrayLike<number>,
+  incidence: ArrayLike<number>,
+  admissionFraction: number,
+  lengthOfStay: number,
+): Float64Array {
+  B[0] = 0;
   for (let k = 1; k < t.length; k++) {
     const tau = (t[k] as number) - (t[k - 1] as number);
     const decay = Math.exp(-tau / lengthOfStay);
