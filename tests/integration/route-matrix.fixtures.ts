@@ -317,3 +317,31 @@ export function diffCounts(before: Record<string, number>, after: Record<string,
   const names = new Set([...Object.keys(before), ...Object.keys(after)]);
   return [...names].filter((t) => (before[t] ?? 0) !== (after[t] ?? 0)).map((t) => `${t} ${(after[t] ?? 0) - (before[t] ?? 0) >= 0 ? '+' : ''}${(after[t] ?? 0) - (before[t] ?? 0)}`);
 }
+
+/**
+ * A fingerprint of the whole database: per table its row count and, where it has them, the
+ * largest `updated_at` and the sum of `version` — so an update in place shows as well as an insert.
+ * One query, so a property test can take it thousands of times.
+ */
+let fingerprintSql: string | null = null;
+export async function fingerprint(): Promise<string> {
+  const { db, dialect } = await import('@/lib/db/connection');
+  const { QueryTypes } = await import('sequelize');
+  const s = await db();
+  if (!fingerprintSql) {
+    const parts: string[] = [];
+    const counts = await countRows();
+    for (const t of Object.keys(counts)) {
+      const cols =
+        dialect() === 'sqlite'
+          ? (await s.query<{ name: string }>(`PRAGMA table_info("${t}")`, { type: QueryTypes.SELECT })).map((c) => c.name)
+          : (await s.query<{ name: string }>(`SELECT column_name AS name FROM information_schema.columns WHERE table_name = '${t}'`, { type: QueryTypes.SELECT })).map((c) => c.name);
+      parts.push(`(SELECT COUNT(*) FROM "${t}")`);
+      if (cols.includes('updated_at')) parts.push(`(SELECT MAX(updated_at) FROM "${t}")`);
+      if (cols.includes('version')) parts.push(`(SELECT SUM(version) FROM "${t}")`);
+    }
+    fingerprintSql = `SELECT ${parts.map((p, i) => `${p} AS c${i}`).join(', ')}`;
+  }
+  const [row] = await s.query<Record<string, unknown>>(fingerprintSql, { type: QueryTypes.SELECT });
+  return JSON.stringify(row);
+}
