@@ -2,6 +2,7 @@ import type { Metadata, Viewport } from 'next';
 import './globals.css';
 import { textFace, figuresFace } from './fonts';
 import { ServiceWorkerRegistration } from '@/components/shell/service-worker-registration';
+import { UpdatePrompt } from '@/components/shell/update-prompt';
 
 export const metadata: Metadata = {
   title: { default: 'Ebbcast', template: '%s · Ebbcast' },
@@ -18,6 +19,7 @@ export default function RootLayout({ children }: { children: React.ReactNode }) 
       <body className="min-h-screen bg-paper text-ink antialiased">
         {children}
         <ServiceWorkerRegistration />
+        <UpdatePrompt />
       </body>
     </html>
   );

@@ -44,13 +44,30 @@ function UserMenu() {
   const { me, fromCache } = useMe();
   const outboxSize = useConnectivity((s) => s.outboxSize);
   const [open, setOpen] = useState(false);
+  // Sign-out steps while changes wait: 'warn' offers to sync first; 'confirm' is the second "yes" before deleting them.
+  const [step, setStep] = useState<'menu' | 'warn' | 'confirm'>('menu');
+  const [syncing, setSyncing] = useState(false);
   if (!me) {
     return <Link href="/signin" className="min-h-touch rounded-lg bg-white px-3 py-2 font-bold text-accent no-underline">Sign in</Link>;
   }
-  const doSignOut = async () => {
-    if (outboxSize > 0 && !window.confirm(`${outboxSize} change(s) have not been synced yet. Sign out anyway? They stay on this device.`)) return;
+  const finish = async (clear: boolean) => {
+    const { clearLocalData } = await import('@/lib/offline/sync-client');
+    if (clear) await clearLocalData();
     forgetMe();
     await signOut({ callbackUrl: '/signin' });
+  };
+  const doSignOut = async () => {
+    if (outboxSize > 0) return setStep('warn');
+    await finish(true); // nothing unsynced: the next person gets a clean device
+  };
+  const syncFirst = async () => {
+    setSyncing(true);
+    try {
+      const { syncNow } = await import('@/lib/offline/sync-client');
+      await syncNow();
+    } finally {
+      setSyncing(false);
+    }
   };
   return (
     <div className="relative">
@@ -58,7 +75,10 @@ function UserMenu() {
         type="button"
         data-testid="user-menu"
         aria-expanded={open}
-        onClick={() => setOpen((v) => !v)}
+        onClick={() => {
+          setOpen((v) => !v);
+          setStep('menu');
+        }}
         className="flex min-h-touch items-center gap-2 rounded-lg border border-white/40 px-3 text-left text-sm"
       >
         <span className="font-bold">{me.name}</span>
@@ -66,11 +86,42 @@ function UserMenu() {
         {fromCache && <span title="Shown from this device while the server is unreachable">(offline)</span>}
       </button>
       {open && (
-        <div className="absolute right-0 z-20 mt-1 w-56 rounded-lg border border-line bg-panel p-2 text-ink shadow-lg">
+        <div className="absolute right-0 z-20 mt-1 w-72 rounded-lg border border-line bg-panel p-2 text-ink shadow-lg" data-testid="user-menu-panel">
           <p className="px-2 py-1 text-sm text-ink/70">{me.email}</p>
-          <button type="button" onClick={doSignOut} className="min-h-touch w-full rounded px-2 text-left font-bold hover:bg-paper">
-            Sign out
-          </button>
+          {step === 'menu' && (
+            <button type="button" onClick={doSignOut} className="min-h-touch w-full rounded px-2 text-left font-bold hover:bg-paper">
+              Sign out
+            </button>
+          )}
+          {step !== 'menu' && outboxSize === 0 && (
+            <div className="flex flex-col gap-2 p-2">
+              <p>Everything has reached the server.</p>
+              <button type="button" onClick={() => finish(true)} className="min-h-touch rounded-lg bg-accent px-3 font-bold text-white">Sign out</button>
+            </div>
+          )}
+          {step === 'warn' && outboxSize > 0 && (
+            <div className="flex flex-col gap-2 p-2" role="alert" data-testid="sign-out-warning">
+              <p className="font-bold text-warning">{outboxSize} change{outboxSize === 1 ? ' has' : 's have'} not reached the server yet.</p>
+              <button type="button" onClick={syncFirst} disabled={syncing} className="min-h-touch rounded-lg bg-accent px-3 font-bold text-white disabled:opacity-50">
+                {syncing ? 'Syncing…' : 'Sync first'}
+              </button>
+              <button type="button" onClick={() => finish(false)} className="min-h-touch rounded-lg border-2 border-ink/30 px-3 font-bold">
+                Sign out, keep them on this device
+              </button>
+              <button type="button" onClick={() => setStep('confirm')} className="min-h-touch rounded-lg px-3 text-left text-sm font-bold text-warning underline">
+                Delete them and sign out…
+              </button>
+            </div>
+          )}
+          {step === 'confirm' && outboxSize > 0 && (
+            <div className="flex flex-col gap-2 p-2" role="alert">
+              <p className="font-bold">Really delete {outboxSize} unsynced change{outboxSize === 1 ? '' : 's'}? They cannot be recovered.</p>
+              <button type="button" onClick={() => finish(true)} data-testid="confirm-delete-outbox" className="min-h-touch rounded-lg bg-warning px-3 font-bold text-white">
+                Yes, delete and sign out
+              </button>
+              <button type="button" onClick={() => setStep('warn')} className="min-h-touch rounded-lg border-2 border-ink/30 px-3 font-bold">Go back</button>
+            </div>
+          )}
         </div>
       )}
     </div>
