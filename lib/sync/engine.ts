@@ -204,6 +204,8 @@ export interface SyncOptions {
   pipeline?: number;
   /** Upper bound of push rounds of one run (a guard against a server that never moves). */
   maxRounds?: number;
+  /** Push only (no pull, and lastSyncAt unchanged). */
+  pushOnly?: boolean;
 }
 
 function classify(err: unknown): Pick<SyncReport, 'error' | 'message'> {
@@ -274,6 +276,7 @@ export async function syncOnce(store: LocalStore, transport: Transport, opts: Sy
         await store.renumberOutbox(gap.seq, gap.expectedSeq);
       }
     }
+    if (opts.pushOnly) return { ...report, ok: true };
     for (;;) {
       const m = await store.meta();
       const page = await transport.pull(m.cursor, opts.pullLimit ?? 500, m.deviceId);
