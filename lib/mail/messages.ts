@@ -80,3 +80,72 @@ export function resetMail(p: ResetMailInput): OutgoingMail {
     `<p style="margin:0 0 12px;font-size:13px;word-break:break-all">${esc(p.link)}</p>`);
   return { to: p.to, subject, text, html };
 }
+
+export interface SitrepMailInput {
+  to: string;
+  recipientName: string;
+  senderName: string;
+  outbreakName: string;
+  figures: Array<{ label: string; value: string; reading: string }>;
+  forecastLine: string | null;
+  link: string;
+  cutoff: string | null;
+}
+
+/** The sitrep summary: the key figures as on the page, and the link to the full report. */
+export function sitrepMail(p: SitrepMailInput): OutgoingMail {
+  const subject = `Sitrep ${p.outbreakName}${p.cutoff ? ` — data to ${formatDay(p.cutoff)}` : ''}`;
+  const intro = `${p.senderName} sent you the situation report of ${p.outbreakName}.`;
+  const caution = 'A model run is a scenario, not a prediction. Decisions rest with the local public-health authority and licensed clinical practice.';
+  const text = [
+    `Hello ${p.recipientName},`, '', intro, '', 'Key figures',
+    ...p.figures.map((f) => `- ${f.label}: ${f.value} — ${f.reading}`),
+    ...(p.forecastLine ? ['', p.forecastLine] : []),
+    '', `The full report, with the epidemic curve, the forecast bands, bed demand, the scenarios and the assumptions (printable on A4):`, p.link,
+    '', caution, '', FOOTER_TEXT,
+  ].join('\n');
+  const rows = p.figures.map((f) =>
+    `<tr><td style="padding:6px 8px;border-bottom:1px solid #ddd;font-weight:bold;vertical-align:top">${esc(f.label)}</td><td style="padding:6px 8px;border-bottom:1px solid #ddd"><span style="font-weight:bold">${esc(f.value)}</span><br><span style="font-size:13px">${esc(f.reading)}</span></td></tr>`,
+  ).join('');
+  const html = layout(subject,
+    para(`Hello ${p.recipientName},`) + para(intro) +
+    `<table style="border-collapse:collapse;width:100%;background:#fff;margin:8px 0 16px">${rows}</table>` +
+    (p.forecastLine ? para(p.forecastLine) : '') + button(p.link, 'Open the full sitrep') +
+    `<p style="margin:0 0 12px;padding:8px;border-left:4px solid #C8962E;background:#fbf3e1">${esc(caution)}</p>`);
+  return { to: p.to, subject, text, html };
+}
+
+export interface CapacityAlertMailInput {
+  to: string;
+  recipientName: string;
+  outbreakName: string;
+  forecastName: string;
+  forecastVersion: number;
+  beds: number;
+  /** First day the central bed demand exceeds the beds, and the earliest/latest of the band. */
+  day: string;
+  earliest: string | null;
+  latest: string | null;
+  /** Days from today to `day`. */
+  inDays: number;
+  peakBeds: number;
+  peakBedsRange: [number, number] | null;
+  link: string;
+}
+
+/** The capacity alert: once per official forecast version, naming the day and its range. */
+export function capacityAlertMail(p: CapacityAlertMailInput): OutgoingMail {
+  const subject = `Capacity alert ${p.outbreakName}: beds exceeded from ${formatDay(p.day)}`;
+  const range = `between ${p.earliest ? formatDay(p.earliest) : formatDay(p.day)} and ${p.latest ? formatDay(p.latest) : 'beyond the forecast horizon'}`;
+  const lines = [
+    `Hello ${p.recipientName},`,
+    `The official forecast of ${p.outbreakName} ("${p.forecastName}", version ${p.forecastVersion}) shows bed demand above the ${p.beds} beds available from ${formatDay(p.day)}, in ${p.inDays} day${p.inDays === 1 ? '' : 's'}.`,
+    `Across the forecast's band the crossing falls ${range}. Bed demand peaks at about ${Math.round(p.peakBeds)} beds${p.peakBedsRange ? ` (${Math.round(p.peakBedsRange[0])} to ${Math.round(p.peakBedsRange[1])})` : ''}.`,
+    'This alert is sent once for this version of the forecast. A newly published forecast is checked again.',
+  ];
+  const caution = 'A model run is a scenario, not a prediction. Decisions rest with the local public-health authority and licensed clinical practice.';
+  const text = [...lines, '', 'The sitrep with the bed-demand chart:', p.link, '', caution, '', FOOTER_TEXT].join('\n');
+  const html = layout(subject, lines.map(para).join('') + button(p.link, 'Open the sitrep') +
+    `<p style="margin:0 0 12px;padding:8px;border-left:4px solid #C8962E;background:#fbf3e1">${esc(caution)}</p>`);
+  return { to: p.to, subject, text, html };
+}
