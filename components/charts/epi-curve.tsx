@@ -68,7 +68,12 @@ export function EpiCurveChart({ curve, height = 300, scopeLabel }: EpiCurveChart
               ctx.setLineDash([]);
               ctx.fillStyle = palette.warning;
               ctx.font = `bold ${12 * devicePixelRatio}px sans-serif`;
-              ctx.fillText('last complete day', x + 4 * devicePixelRatio, top + 14 * devicePixelRatio);
+              const text = 'last complete day';
+              const pad = 4 * devicePixelRatio;
+              // Left of the marker when the right margin is too narrow for the words.
+              const fits = x + pad + ctx.measureText(text).width <= left + width;
+              ctx.textAlign = fits ? 'left' : 'right';
+              ctx.fillText(text, fits ? x + pad : x - pad, top + 14 * devicePixelRatio);
             }
             // A hollow tick under each day no site reported: "no report", not "no cases".
             ctx.strokeStyle = palette.ink;

@@ -18,7 +18,8 @@ const STEP = 'min-h-14 min-w-14 rounded-lg border-2 border-ink/30 bg-panel text-
 export const CountStepper = forwardRef<HTMLInputElement, CountStepperProps>(function CountStepper({ label, value, onChange, error, hint, name }, ref) {
   const n = Number(value);
   const step = (d: number) => {
-    const base = value.trim() === '' || !Number.isFinite(n) ? 0 : Math.trunc(n);
+    // A blank, unreadable or negative entry steps from 0, the only sensible floor for a count.
+    const base = value.trim() === '' || !Number.isFinite(n) ? 0 : Math.max(0, Math.trunc(n));
     onChange(String(Math.max(0, base + d)));
   };
   return (

@@ -35,7 +35,7 @@ export function TalliesScreen() {
   const { curve } = useEpiCurve(outbreakId, curveSite || null);
   const { rows, total, people, loading } = useTallies(outbreakId, { ...filter, sort, limit: PAGE, offset: page * PAGE });
   const today = localToday();
-  const { grid } = useReportingGrid(view === 'grid' ? outbreakId : null, { from: addDays(today, -27), to: today });
+  const { grid } = useReportingGrid(view === 'grid' ? outbreakId : null, { from: addDays(today, -20), to: today });
   const canImport = me ? roleMay(me.role, 'tally:import') : false;
   const showGrid = me ? me.role !== 'field' : false;
 
@@ -88,7 +88,7 @@ export function TalliesScreen() {
         </Card>
       )}
       {view === 'grid' && showGrid && (
-        <Card title="Which sites reported, the last 4 weeks">{grid ? <ReportingGrid grid={grid} /> : <p>Loading…</p>}</Card>
+        <Card title="Which sites reported, the last 3 weeks">{grid ? <ReportingGrid grid={grid} /> : <p>Loading…</p>}</Card>
       )}
       {view === 'import' && canImport && (
         <Card title="Import tallies from CSV"><CsvImport outbreakId={outbreakId} /></Card>

@@ -251,14 +251,18 @@ export async function listTalliesByOutbreak(
 
 /**
  * Which sites reported on which days, for the completeness grid: one SELECT of (site, day) pairs
- * over a window (default: the 28 days up to `to`), never the tallies themselves.
+ * over a window (default: the 21 days up to `to`, never before day 0), never the tallies themselves.
  */
 export async function getReportingGrid(
   actor: Actor, outbreakId: string, opts: { from?: string; to?: string } = {},
 ): Promise<{ from: string; to: string; sites: { siteId: string; name: string; teamId: string | null; dates: Record<string, number> }[] }> {
   const { siteIds } = await siteScope(actor, outbreakId);
+  const outbreak = await Outbreak.findByPk(outbreakId, { attributes: ['startDate'] });
+  if (!outbreak) throw notFound('Outbreak');
   const to = opts.to ?? utcToday();
-  let from = opts.from ?? addDays(to, -27);
+  let from = opts.from ?? addDays(to, -20);
+  // Days before day 0 have nothing to report; showing them as gaps would read as missing reports.
+  if (from < String(outbreak.startDate)) from = String(outbreak.startDate);
   if (from > to) from = to;
   if (daysBetween(from, to) > 366) from = addDays(to, -366);
   const sites = await Site.findAll({ where: { outbreakId, deletedAt: null, ...(siteIds ? { id: { [Op.in]: siteIds } } : {}) }, order: [['name', 'ASC']] });

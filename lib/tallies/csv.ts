@@ -64,8 +64,13 @@ const cut = (s: string) => (s.length > 80 ? `${s.slice(0, 77)}…` : s);
 const key = (h: string) => h.replace(/^\uFEFF/, '').toLowerCase().replace(/[\s_-]+/g, '');
 const BY_KEY = new Map<string, CsvColumn>(CSV_COLUMNS.map((c) => [key(c), c]));
 
-/** Spreadsheet formulae are escaped on export with a leading apostrophe; take it off on the way in. */
-const unescapeFormula = (s: string) => (/^'[=+\-@\t\r]/.test(s) ? s.slice(1) : s);
+/**
+ * Spreadsheet formulae are escaped on export with a leading apostrophe (and so is a leading
+ * apostrophe itself, so that a note starting with "'=" survives the round trip); take one off on
+ * the way in.
+ */
+const unescapeFormula = (s: string) => (/^'[=+\-@\t\r']/.test(s) ? s.slice(1) : s);
+const FORMULA_START = /^[=+\-@\t\r']/;
 
 export class CsvTooManyRowsError extends Error {
   constructor(readonly rows: number) {
@@ -273,7 +278,7 @@ export interface CsvTally {
 /** Tallies as CSV in the import format, so an export reads back in. Formulae are escaped for spreadsheets. */
 export function serialiseTallyCsv(rows: ReadonlyArray<CsvTally>): string {
   const data = rows.map((r) => [r.siteName, r.date, r.newCases, r.recoveries ?? '', r.deaths ?? '', r.admissions ?? '', r.note ?? '']);
-  return Papa.unparse({ fields: [...CSV_COLUMNS], data }, { escapeFormulae: true, newline: '\n' }) + '\n';
+  return Papa.unparse({ fields: [...CSV_COLUMNS], data }, { escapeFormulae: FORMULA_START, newline: '\n' }) + '\n';
 }
 
 /** The answer of an import (preview or commit), as the route sends it. */

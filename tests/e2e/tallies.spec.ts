@@ -34,9 +34,11 @@ test.describe('tallies', () => {
     await cases.fill('-3');
     await cases.press('Enter');
     await expect(page.getByText('Cannot be negative.')).toBeVisible();
-    await page.getByRole('button', { name: 'New cases: one more' }).click();
-    await page.getByRole('button', { name: 'New cases: one more' }).click();
+    await page.getByRole('button', { name: 'New cases: one less' }).click();
     await expect(cases).toHaveValue('0');
+    await page.getByRole('button', { name: 'New cases: one more' }).click();
+    await page.getByRole('button', { name: 'New cases: one more' }).click();
+    await expect(cases).toHaveValue('2');
     await cases.fill('12');
     await page.screenshot({ path: '/tmp/tallies-entry-form.png', fullPage: true });
     await page.getByRole('button', { name: 'Save and next site' }).click();
