@@ -74,6 +74,76 @@ function setPath(root: Record<string, unknown>, path: string, value: number, whe
   else node[leaf] = value;
 }
 
+const nonNegative = (x: number) => x >= 0;
+const fraction = (x: number) => x >= 0 && x <= 1;
+const rate = (x: number) => x >= 0 && x <= 1000;
+const positiveRate = (x: number) => x > 0 && x <= 1000;
+/** Leaf bounds of scenarioInputSchema for each path an ensemble may vary (interventions by field). */
+const LEAF_OK: Readonly<Record<string, (x: number) => boolean>> = {
+  population: (x) => x > 0 && x <= 1e10,
+  'initial.I': nonNegative,
+  'initial.E': nonNegative,
+  'initial.R': nonNegative,
+  'params.beta': rate,
+  'params.gamma': positiveRate,
+  'params.sigma': positiveRate,
+  'params.omega': rate,
+  'vaccination.atStart': fraction,
+  'vaccination.dailyRate': (x) => x >= 0 && x <= 10,
+  'vaccination.startDay': nonNegative,
+  'capacity.admissionFraction': fraction,
+  'capacity.lengthOfStay': (x) => x > 0 && x <= 365,
+  'capacity.beds': nonNegative,
+  startDay: nonNegative,
+  endDay: nonNegative,
+  contactReduction: fraction,
+};
+
+/**
+ * True when a variant of an input the schema has already accepted, changed only at the finite numeric
+ * leaves `keys`, certainly passes scenarioInputSchema: each varied leaf is within its bounds and the
+ * cross-field rules hold. The ensemble then skips the full parse (its cost per member is about that of
+ * the integration's bookkeeping). False only means "let the schema decide": it then names the failing
+ * field, exactly as before. tests/unit/model/fast-paths.test.ts checks it never accepts what the schema
+ * rejects.
+ */
+export function variantPasses(v: ScenarioInput, keys: readonly string[]): boolean {
+  for (const key of keys) {
+    const parts = key.split('.');
+    let value: unknown;
+    let ok: ((x: number) => boolean) | undefined;
+    if (parts[0] === 'interventions') {
+      const iv = v.interventions?.[Number(parts[1])];
+      if (!iv) return false;
+      const field = parts[2] as string;
+      value = (iv as unknown as Record<string, unknown>)[field];
+      ok = LEAF_OK[field];
+      if (iv.endDay !== undefined && !(iv.endDay > iv.startDay)) return false;
+    } else if (parts[0] === 'capacity') {
+      const c = v.capacity;
+      if (!c || typeof c.admissionFraction !== 'number' || typeof c.lengthOfStay !== 'number' || typeof c.beds !== 'number') {
+        return false;
+      }
+      value = (c as unknown as Record<string, unknown>)[parts[1] as string];
+      ok = LEAF_OK[key];
+    } else {
+      const blocks = v as unknown as Record<string, Record<string, unknown> | undefined>;
+      value = parts.length === 1 ? v.population : blocks[parts[0] as string]?.[parts[1] as string];
+      ok = LEAF_OK[key];
+    }
+    if (!ok || typeof value !== 'number' || !ok(value)) return false;
+  }
+  const { I } = v.initial;
+  const E = v.initial.E ?? 0;
+  const R = v.initial.R ?? 0;
+  const N = v.population;
+  if (!(I <= N) || !(I + E + R <= N * (1 + 1e-12))) return false;
+  if (v.model !== 'SEIR' && E > 0) return false;
+  if (v.model === 'SEIR' && v.params.sigma === undefined) return false;
+  if (v.model === 'SIRS' && v.params.omega === undefined) return false;
+  return true;
+}
+
 /** Copy of the nested blocks a sample may write into (cheaper than structuredClone per run). */
 function cloneInput(s: ScenarioInput): ScenarioInput {
   const c: ScenarioInput = { ...s, initial: { ...s.initial }, params: { ...s.params } };
@@ -278,9 +348,26 @@ function integrateDaily(
     incM[B.r] = 0;
   }
   let seg = 0;
+  // Without switches every day is the one piece [d, d + 1]: the same n steps and tail each day.
+  const plain = nSeg === 1 && two && sa.segNU[0] === 0 && sb.segNU[0] === 0;
+  if (plain) {
+    pA[pBN] = sa.segBN[0] as number;
+    pA[pNU] = 0;
+    pB[pBN] = sb.segBN[0] as number;
+    pB[pNU] = 0;
+  }
+  const n1 = Math.floor(1 / h + 1e-9);
+  const r1 = 1 - n1 * h;
+  const tail1 = r1 > thr;
   for (let d = 0; d < days; d++) {
     let a = d;
     const dayEnd = d + 1;
+    if (plain) {
+      const k2 = kern2 as Kernel2;
+      if (n1 > 0) k2(yA, pA, pkA, yB, pB, pkB, a, h, n1);
+      if (tail1) k2(yA, pA, pkA, yB, pB, pkB, a + n1 * h, r1, 1);
+      a = dayEnd;
+    }
     while (a < dayEnd) {
       while (seg < nSeg - 1 && (segEnd[seg] as number) <= a) seg++;
       const se = segEnd[seg] as number;
@@ -365,7 +452,8 @@ function runEnsemble(
       }
       setPath(copy, key, v, where);
     }
-    return parseScenarioInput(copy);
+    const variant = copy as unknown as ScenarioInput;
+    return variantPasses(variant, keys) ? variant : parseScenarioInput(variant);
   };
 
   // Peak, beds and progress of member r once its I and incidence columns are written.

@@ -22,35 +22,40 @@ function slope(kind: ModelKind, bN: number, gamma: number, sigma: number, S: num
   return kind === 'SEIR' ? sigma * E - gamma * I : bN * S * I - gamma * I;
 }
 
+/** The cubic Hermite interpolant at s ∈ [0, 1] of an interval of length L. */
+function hermiteValue(s: number, L: number, ya: number, ma: number, yb: number, mb: number): number {
+  const s2 = s * s;
+  const s3 = s2 * s;
+  return (2 * s3 - 3 * s2 + 1) * ya + (s3 - 2 * s2 + s) * L * ma + (-2 * s3 + 3 * s2) * yb + (s3 - s2) * L * mb;
+}
+
 /** Maximum of the cubic Hermite interpolant on [ta, tb]; returns [t, value]. */
 export function hermiteMax(ta: number, ya: number, ma: number, tb: number, yb: number, mb: number): [number, number] {
   const L = tb - ta;
-  const value = (s: number) => {
-    const s2 = s * s;
-    const s3 = s2 * s;
-    return (2 * s3 - 3 * s2 + 1) * ya + (s3 - 2 * s2 + s) * L * ma + (-2 * s3 + 3 * s2) * yb + (s3 - s2) * L * mb;
-  };
   let bestS = ya >= yb ? 0 : 1;
   let bestV = Math.max(ya, yb);
   // p'(s) = A s² + B s + C
   const A = 6 * ya + 3 * L * ma - 6 * yb + 3 * L * mb;
   const B = -6 * ya - 4 * L * ma + 6 * yb - 2 * L * mb;
   const C = L * ma;
-  const roots: number[] = [];
+  // Up to two roots of p'; NaN marks "none" (it fails the (0, 1) test below).
+  let r1 = NaN;
+  let r2 = NaN;
   if (Math.abs(A) < 1e-14 * (Math.abs(B) + Math.abs(C) + 1e-300)) {
-    if (B !== 0) roots.push(-C / B);
+    if (B !== 0) r1 = -C / B;
   } else {
     const disc = B * B - 4 * A * C;
     if (disc >= 0) {
       // Stable quadratic roots (no cancellation).
       const q = -0.5 * (B + (B >= 0 ? 1 : -1) * Math.sqrt(disc));
-      roots.push(q / A);
-      if (q !== 0) roots.push(C / q);
+      r1 = q / A;
+      if (q !== 0) r2 = C / q;
     }
   }
-  for (const s of roots) {
+  for (let i = 0; i < 2; i++) {
+    const s = i === 0 ? r1 : r2;
     if (s > 0 && s < 1) {
-      const v = value(s);
+      const v = hermiteValue(s, L, ya, ma, yb, mb);
       if (v > bestV) {
         bestV = v;
         bestS = s;
@@ -60,36 +65,37 @@ export function hermiteMax(ta: number, ya: number, ma: number, tb: number, yb: n
   return [ta + bestS * L, bestV];
 }
 
-/** The refined peak from a kernel peak tracker. */
+/** The refined peak from a kernel peak tracker. (No closures: this runs once per ensemble member.) */
 export function refinePeak(pk: Float64Array, kind: ModelKind, gamma: number, sigma: number): Peak {
-  const g = (i: number) => pk[i] as number;
-  let day = g(PK_T1);
-  let infectious = g(PK_BEST);
+  let day = pk[PK_T1] as number;
+  let infectious = pk[PK_BEST] as number;
   const I1 = infectious;
-  if (g(PK_HAS0) === 1) {
-    const bN = g(PK_BN1);
+  if (pk[PK_HAS0] === 1) {
+    const bN = pk[PK_BN1] as number;
+    const I0 = pk[PK_I0] as number;
     const [t, v] = hermiteMax(
-      g(PK_T0),
-      g(PK_I0),
-      slope(kind, bN, gamma, sigma, g(PK_S0), g(PK_E0), g(PK_I0)),
-      g(PK_T1),
+      pk[PK_T0] as number,
+      I0,
+      slope(kind, bN, gamma, sigma, pk[PK_S0] as number, pk[PK_E0] as number, I0),
+      pk[PK_T1] as number,
       I1,
-      slope(kind, bN, gamma, sigma, g(PK_S1), g(PK_E1), I1),
+      slope(kind, bN, gamma, sigma, pk[PK_S1] as number, pk[PK_E1] as number, I1),
     );
     if (v > infectious) {
       infectious = v;
       day = t;
     }
   }
-  if (g(PK_HAS2) === 1) {
-    const bN = g(PK_BN2);
+  if (pk[PK_HAS2] === 1) {
+    const bN = pk[PK_BN2] as number;
+    const I2 = pk[PK_I2] as number;
     const [t, v] = hermiteMax(
-      g(PK_T1),
+      pk[PK_T1] as number,
       I1,
-      slope(kind, bN, gamma, sigma, g(PK_S1), g(PK_E1), I1),
-      g(PK_T2),
-      g(PK_I2),
-      slope(kind, bN, gamma, sigma, g(PK_S2), g(PK_E2), g(PK_I2)),
+      slope(kind, bN, gamma, sigma, pk[PK_S1] as number, pk[PK_E1] as number, I1),
+      pk[PK_T2] as number,
+      I2,
+      slope(kind, bN, gamma, sigma, pk[PK_S2] as number, pk[PK_E2] as number, I2),
     );
     if (v > infectious) {
       infectious = v;

@@ -7,12 +7,14 @@
  *   run alone with simulate() + summarize() and the bands are reduced by a plain sort and the type-7
  *   percentile rule [cp: Hyndman & Fan type 7, as documented in ensemble.ts], and must be equal.
  */
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import {
-  ensembleFromSamples, simulate, summarize, type EnsembleResult, type ParamSample, type Percentiles, type Run,
+  ensembleFromSamples, parseScenarioInput, scenarioInputSchema, simulate, summarize, type EnsembleResult, type ParamSample, type Percentiles, type Run,
   type ScenarioInput,
 } from '@/lib/model';
 import { Dopri5State, dopri5Interval, type StepSink } from '@/lib/model/dopri5';
+import { variantPasses } from '@/lib/model/ensemble';
 import { PK_LEN, P_BN, P_G, P_LEN, P_N, P_NU, P_OM, P_SIG, Y_C, Y_E, Y_I, Y_LEN, Y_R, Y_S, Y_V, initPeak, rhsSEIR, rhsSIR, rhsSIRS } from '@/lib/model/kernels';
 import { initialStateInto, segmentsOf, switchTimes } from '@/lib/model/simulate';
 import { canonical, intervened, seir, sirs, vaccinated } from './cases';
@@ -127,16 +129,18 @@ function series(cols: Float64Array[]): Percentiles<number[]> {
 const plain = (b: Percentiles<Float64Array> | undefined) =>
   b && { p5: Array.from(b.p5), p25: Array.from(b.p25), p50: Array.from(b.p50), p75: Array.from(b.p75), p95: Array.from(b.p95) };
 
-/** The sample applied by hand (paths used below only). */
+/** The sample applied by hand, as ensemble.ts documents it (a missing vaccination block is created). */
 function applySample(input: ScenarioInput, s: ParamSample): ScenarioInput {
   const v: ScenarioInput = structuredClone(input);
   for (const [path, value] of Object.entries(s)) {
     const [head, a, b] = path.split('.') as [string, string, string | undefined];
-    if (head === 'params') (v.params as Record<string, number>)[a] = value;
+    const iv = head === 'interventions' ? v.interventions?.[Number(a)] : undefined;
+    if (head === 'population') v.population = value;
+    else if (head === 'params') (v.params as Record<string, number>)[a] = value;
     else if (head === 'initial') (v.initial as Record<string, number>)[a] = value;
-    else if (head === 'interventions') ((v.interventions ?? [])[Number(a)] as unknown as Record<string, number>)[b as string] = value;
+    else if (iv) (iv as unknown as Record<string, number>)[b as string] = value;
     else if (head === 'vaccination') v.vaccination = { ...v.vaccination, [a]: value };
-    else if (head === 'capacity' && v.capacity) (v.capacity as Record<string, number>)[a] = value;
+    else if (head === 'capacity') v.capacity = { ...v.capacity, [a]: value } as ScenarioInput['capacity'];
     else throw new Error(`test helper cannot set ${path}`);
   }
   return v;
@@ -216,5 +220,51 @@ describe('ensemble fast path = simulate() + summarize() per member, reduced by p
     const samples = bs.map((b, i) => ({ 'params.beta': b, 'params.gamma': gs[i] as number }));
     const input: ScenarioInput = { ...canonical, step: 0.2, days: 150, capacity };
     expectSameEnsemble(ensembleFromSamples(input, samples), reference(input, samples), m);
+  });
+});
+
+describe('ensemble variants skip the schema only when it would accept them [calc: scenarioInputSchema]', () => {
+  const bases: ScenarioInput[] = [
+    { ...canonical, capacity: { admissionFraction: 0.05, lengthOfStay: 6, beds: 40 } },
+    { ...intervened, vaccination: { atStart: 0.1, dailyRate: 0.01, startDay: 10 } },
+    { ...sirs, initial: { I: 10, R: 4000 } },
+    { ...seir, population: 30 },
+  ];
+  const paths = [
+    'population', 'initial.I', 'initial.E', 'initial.R', 'params.beta', 'params.gamma', 'params.sigma',
+    'params.omega', 'vaccination.atStart', 'vaccination.dailyRate', 'vaccination.startDay',
+    'capacity.admissionFraction', 'capacity.lengthOfStay', 'capacity.beds', 'interventions.0.startDay',
+    'interventions.0.endDay', 'interventions.1.contactReduction',
+  ];
+  // Bounds of the schema and their neighbours, plus ordinary values.
+  const edges = [-1, -1e-300, 0, 1e-300, 0.5, 1, 1 + 1e-15, 2, 10, 11, 30, 45, 365, 366, 999, 1000, 1001, 1e10, 1.0000001e10];
+  const value = fc.oneof(fc.constantFrom(...edges), fc.double({ min: -10, max: 2000, noNaN: true }));
+  it('never accepts a variant the schema rejects, and accepts ordinary ones', () => {
+    let skipped = 0;
+    fc.assert(
+      fc.property(fc.constantFrom(...bases), fc.uniqueArray(fc.constantFrom(...paths), { minLength: 1, maxLength: 3 }), fc.array(value, { minLength: 3, maxLength: 3 }), (base, keys, values) => {
+        const sample: Record<string, number> = {};
+        keys.forEach((k, i) => (sample[k] = values[i] as number));
+        let variant: ScenarioInput;
+        try {
+          variant = applySample({ ...parseScenarioInput(base), record: 'daily' }, sample);
+        } catch {
+          return; // a path this base lacks (e.g. interventions on SIR): setPath refuses it before any check
+        }
+        if (variantPasses(variant, keys)) {
+          skipped++;
+          expect(scenarioInputSchema.safeParse(variant).success).toBe(true);
+        }
+      }),
+      { numRuns: 3000, seed: 20260 },
+    );
+    expect(skipped).toBeGreaterThan(300);
+  });
+  it('names the field of a bad draw exactly as the schema does', () => {
+    const base = bases[1] as ScenarioInput;
+    expect(() => ensembleFromSamples(base, [{ 'interventions.0.endDay': 5 }])).toThrow(/interventions\.0\.endDay/);
+    expect(() => ensembleFromSamples(base, [{ 'initial.I': 60_000 }])).toThrow(/initial\.I/);
+    expect(() => ensembleFromSamples(canonical, [{ 'initial.E': 3 }])).toThrow(/initial\.E/);
+    expect(() => ensembleFromSamples(canonical, [{ 'capacity.beds': 3 }])).toThrow(/capacity/);
   });
 });
