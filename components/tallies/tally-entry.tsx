@@ -56,7 +56,7 @@ export function TallyEntry() {
 
   const site = sites.find((s) => s.id === siteId);
   const prevDay = addDays(date, -1);
-  const { rows, loading } = useTallies(outbreakId && siteId ? outbreakId : null, { siteId: siteId ?? undefined, from: prevDay, to: date });
+  const { rows, loading, reload } = useTallies(outbreakId && siteId ? outbreakId : null, { siteId: siteId ?? undefined, from: prevDay, to: date });
   const existing = rows.find((r) => r.date === date && r.siteId === siteId);
   const previous = rows.find((r) => r.date === prevDay && r.siteId === siteId);
   const { grid } = useReportingGrid(outbreakId, { from: date, to: date });
@@ -116,6 +116,8 @@ export function TallyEntry() {
       firstField.current?.focus();
     } catch (err) {
       if (err instanceof ApiError && err.fields) setErrors(err.fields as FormErrors);
+      // Someone else's tally for this site and day won: show it, so the person sees what was kept.
+      if (err instanceof ApiError && err.status === 409) reload();
       setFailure(err instanceof Error ? err.message : 'The tally could not be saved.');
     } finally {
       setBusy(false);
