@@ -43,19 +43,19 @@ test.describe('tallies', () => {
     await page.screenshot({ path: '/tmp/tallies-entry-form.png', fullPage: true });
     await page.getByRole('button', { name: 'Save and next site' }).click();
     await expect(page.getByTestId('entry-saved')).toContainText('Saved — Alder Camp');
-    // Save and next site moved on to the next site of the team.
-    await expect(picker.getByRole('button', { name: 'Northgate School' })).toHaveAttribute('aria-pressed', 'true');
-    await expect(page.getByTestId('entry-status')).toContainText('No tally yet for Northgate School');
+    // Save and next site moved on to the next site of the team (sites in name order).
+    await expect(picker.getByRole('button', { name: 'Hollin Crossing' })).toHaveAttribute('aria-pressed', 'true');
+    await expect(page.getByTestId('entry-status')).toContainText('No tally yet for Hollin Crossing');
 
     // More cases than people at the site: the form warns and asks to confirm.
-    await cases.fill('900');
+    await cases.fill('2000');
     await cases.press('Enter');
-    await expect(page.getByRole('alertdialog', { name: 'Please check' })).toContainText("more than the site's population (860)");
+    await expect(page.getByRole('alertdialog', { name: 'Please check' })).toContainText("more than the site's population (1900)");
     await page.screenshot({ path: '/tmp/tallies-entry-warning.png', fullPage: true });
     await page.getByRole('button', { name: 'Change the count' }).click();
     await cases.fill('9');
     await cases.press('Enter');
-    await expect(page.getByTestId('entry-saved')).toContainText('Saved — Northgate School');
+    await expect(page.getByTestId('entry-saved')).toContainText('Saved — Hollin Crossing');
     await expect(picker.getByRole('button', { name: /Alder Camp/ })).toContainText('✓');
 
     // Opening the same site and day again loads the tally for editing.
@@ -65,7 +65,7 @@ test.describe('tallies', () => {
 
     await page.goto(`/tallies?outbreak=${DEMO_OUTBREAK}`);
     await expect.poll(() => curveTotal(page)).toBe(before + 21);
-    await expect(page.getByTestId('tally-table')).toContainText('Northgate School');
+    await expect(page.getByTestId('tally-table')).toContainText('Hollin Crossing');
     await page.screenshot({ path: '/tmp/tallies-curve-after.png', fullPage: true });
   });
 
