@@ -4,7 +4,7 @@
  * lib/db/scenarios.ts) with the batch's transaction passed in, so the rules live in one place.
  */
 import { Op, QueryTypes, type Transaction, type WhereOptions } from 'sequelize';
-import { AppliedMutation, Device, Outbreak, Scenario, Site, Tally, Team } from '@/models';
+import { AppliedMutation, Device, Outbreak, Scenario, ServerCounter, Site, Tally, Team } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize, may } from '@/lib/auth/permissions';
 import { AppError, forbidden } from '@/lib/http/errors';
@@ -17,7 +17,10 @@ import { uuidSchema } from '@/lib/validation/common';
 import { db, writeTx } from './connection';
 import { appendLedger } from './ledger';
 import { toOutbreakRecord, toSiteRecord, toTeamRecord } from './outbreaks';
-import { deleteTally, toTallyRecord, upsertTally } from './tallies';
+import { deleteTally, latestAcceptedDay, toTallyRecord, upsertTally } from './tallies';
+import { nextChangeSeq } from './counters';
+import { normaliseValues } from '@/lib/sync/tally-rules';
+import type { TallyInput } from '@/lib/validation/tally';
 import { deleteScenario, toScenarioRecord, upsertScenario } from './scenarios';
 
 export interface DeviceRecord {
@@ -82,8 +85,10 @@ export async function pushMutations(actor: Actor, body: PushBody): Promise<PushR
     }
     let highest = Number(device.highestSeq);
     const counts: Counts = { applied: 0, duplicate: 0, conflict: 0, rejected: 0, resent: 0 };
-    const results: PushResult[] = [];
+    const results: (PushResult | null)[] = [];
     const outbreakIds = new Set<string>();
+    // First the seq rule over the whole batch, before anything is written.
+    const fresh: Mutation[] = [];
     for (const m of body.mutations) {
       const prior = known.get(m.mutationId);
       if (prior) {
@@ -104,25 +109,37 @@ export async function pushMutations(actor: Actor, body: PushBody): Promise<PushR
           { detail: { reason: m.seq > expectedSeq ? 'seq_gap' : 'seq_reused', expectedSeq, seq: m.seq } },
         );
       }
-      const { result, outbreakId } = await applyOne(actor, device.id, m, t);
-      if (outbreakId) outbreakIds.add(outbreakId);
-      await AppliedMutation.create(
-        {
-          mutationId: m.mutationId, deviceId: device.id, seq: m.seq, entity: m.entity, entityId: m.entityId,
-          fate: result.fate, reason: result.reason ?? null, result: JSON.stringify(result), appliedAt: new Date(),
-        },
-        { transaction: t },
-      );
-      if (result.fate === 'conflict') {
-        await appendLedger(t, {
-          kind: 'conflict', userId: actor.id, deviceId: device.id, outbreakId,
-          detail: { conflictId: result.conflictId, entity: m.entity, entityId: m.entityId, reason: result.reason, mutationId: m.mutationId },
-        });
-      }
-      counts[result.fate]++;
-      results.push(result);
+      fresh.push(m);
+      results.push(null);
       highest = m.seq;
     }
+    const answers = new Map<string, Applied>();
+    for (const [id, a] of await applyPlainInserts(actor, device.id, fresh, t)) answers.set(id, a);
+    for (const m of fresh) {
+      if (answers.has(m.mutationId)) continue;
+      const a = await applyOne(actor, device.id, m, t);
+      answers.set(m.mutationId, a);
+      if (a.result.fate === 'conflict') {
+        await appendLedger(t, {
+          kind: 'conflict', userId: actor.id, deviceId: device.id, outbreakId: a.outbreakId,
+          detail: { conflictId: a.result.conflictId, entity: m.entity, entityId: m.entityId, reason: a.result.reason, mutationId: m.mutationId },
+        });
+      }
+    }
+    const appliedAt = new Date();
+    const rows = fresh.map((m) => {
+      const { result, outbreakId } = answers.get(m.mutationId)!;
+      if (outbreakId) outbreakIds.add(outbreakId);
+      counts[result.fate]++;
+      return {
+        mutationId: m.mutationId, deviceId: device.id, seq: m.seq, entity: m.entity, entityId: m.entityId,
+        fate: result.fate, reason: result.reason ?? null, result: JSON.stringify(result), appliedAt,
+      };
+    });
+    const qi = (await db()).getQueryInterface();
+    for (let i = 0; i < rows.length; i += 500) await qi.bulkInsert('applied_mutations', rows.slice(i, i + 500).map(snakeRow), { transaction: t });
+    let k = 0;
+    for (let i = 0; i < results.length; i++) if (results[i] === null) results[i] = answers.get(fresh[k++]!.mutationId)!.result;
     await device.update({ highestSeq: highest, lastSeenAt: new Date() }, { transaction: t });
     const only = outbreakIds.size === 1 ? [...outbreakIds][0]! : null;
     await appendLedger(t, {
@@ -134,13 +151,86 @@ export async function pushMutations(actor: Actor, body: PushBody): Promise<PushR
         ...(outbreakIds.size > 1 ? { outbreakIds: [...outbreakIds] } : {}),
       },
     });
-    return { results, highestSeq: highest };
+    return { results: results as PushResult[], highestSeq: highest };
   });
 }
+
+const snakeRow = (r: Record<string, unknown>) => Object.fromEntries(Object.entries(r).map(([k, v]) => [k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`), v]));
 
 interface Applied {
   result: PushResult;
   outbreakId: string | null;
+}
+
+/**
+ * The common case of a batch, in bulk: new tallies (no base version) of a site and day nobody
+ * has recorded, by someone allowed to write that site, on a valid day. For exactly these,
+ * upsertTally's rules (lib/sync/tally-rules.ts) decide "insert" and its insert writes the row
+ * below; doing them together takes a few statements per batch instead of about ten per
+ * mutation. Everything else — an edit, a delete, a second mutation of the same record or day in
+ * the batch, anything that upsertTally would refuse or turn into a conflict — goes through
+ * upsertTally itself. tests/integration/sync-protocol.test.ts checks that both paths write the same record.
+ */
+async function applyPlainInserts(actor: Actor, deviceId: string, muts: Mutation[], t: Transaction): Promise<Map<string, Applied>> {
+  const out = new Map<string, Applied>();
+  const entityCount = new Map<string, number>();
+  const dayCount = new Map<string, number>();
+  const parsed = new Map<string, TallyInput>();
+  for (const m of muts) {
+    entityCount.set(m.entityId, (entityCount.get(m.entityId) ?? 0) + 1);
+    if (m.entity !== 'tally' || m.op !== 'upsert') continue;
+    const p = tallyInputSchema.safeParse({ ...(m.payload ?? {}), id: m.entityId, baseVersion: null });
+    if (!p.success) continue;
+    parsed.set(m.mutationId, p.data);
+    const key = `${p.data.siteId}|${p.data.date}`;
+    dayCount.set(key, (dayCount.get(key) ?? 0) + 1);
+  }
+  const candidates = muts.filter((m) => {
+    const p = parsed.get(m.mutationId);
+    return p && m.baseVersion === null && entityCount.get(m.entityId) === 1 && dayCount.get(`${p.siteId}|${p.date}`) === 1;
+  });
+  if (candidates.length < 2) return out;
+  const siteIds = [...new Set(candidates.map((m) => parsed.get(m.mutationId)!.siteId))];
+  const sites = new Map((await Site.findAll({ where: { id: { [Op.in]: siteIds } }, attributes: ['id', 'outbreakId', 'teamId', 'deletedAt'], transaction: t })).map((x) => [x.id, x]));
+  const outbreaks = new Map(
+    (await Outbreak.findAll({ where: { id: { [Op.in]: [...new Set([...sites.values()].map((x) => x.outbreakId))] } }, attributes: ['id', 'startDate', 'deletedAt'], transaction: t })).map((o) => [o.id, o]),
+  );
+  const taken = new Set((await Tally.findAll({ where: { id: { [Op.in]: candidates.map((m) => m.entityId) } }, attributes: ['id'], transaction: t })).map((x) => x.id));
+  const dates = [...new Set(candidates.map((m) => parsed.get(m.mutationId)!.date))];
+  const liveDays = new Set(
+    (await Tally.findAll({ where: { siteId: { [Op.in]: siteIds }, date: { [Op.in]: dates }, deletedAt: null }, attributes: ['siteId', 'date'], transaction: t })).map((x) => `${x.siteId}|${x.date}`),
+  );
+  const latest = latestAcceptedDay();
+  const plain = candidates.filter((m) => {
+    const p = parsed.get(m.mutationId)!;
+    const site = sites.get(p.siteId);
+    const outbreak = site && outbreaks.get(site.outbreakId);
+    return site && !site.deletedAt && outbreak && !outbreak.deletedAt && !taken.has(m.entityId) && !liveDays.has(`${p.siteId}|${p.date}`)
+      && may(actor, 'tally:write', { outbreakId: site.outbreakId, teamId: site.teamId })
+      && p.date <= latest && p.date >= String(outbreak.startDate);
+  });
+  if (!plain.length) return out;
+  const first = await nextChangeSeq(t);
+  if (plain.length > 1) await ServerCounter.increment('value', { by: plain.length - 1, where: { name: 'change' }, transaction: t });
+  const now = new Date();
+  const rows = plain.map((m, i) => {
+    const p = parsed.get(m.mutationId)!;
+    return {
+      id: m.entityId, outbreakId: sites.get(p.siteId)!.outbreakId, siteId: p.siteId, date: p.date, ...normaliseValues(p),
+      version: 1, changeSeq: first + i, updatedBy: actor.id, deviceId, recordedBy: actor.id, recordedAt: new Date(m.recordedAt),
+      createdAt: now, updatedAt: now,
+    };
+  });
+  // Straight to the table (no model instances): the rows are complete and already checked.
+  const q = (await db()).getQueryInterface();
+  for (let i = 0; i < rows.length; i += 500) {
+    await q.bulkInsert('tallies', rows.slice(i, i + 500).map(snakeRow), { transaction: t });
+  }
+  rows.forEach((row, i) => {
+    const m = plain[i]!;
+    out.set(m.mutationId, { result: { mutationId: m.mutationId, fate: 'applied', record: { ...toTallyRecord({ ...row, deletedAt: null } as unknown as Tally) } }, outbreakId: row.outbreakId });
+  });
+  return out;
 }
 
 /**
@@ -282,7 +372,8 @@ async function loadChanges(keys: { entity: PullEntity; id: string }[]): Promise<
     if (!list.length) return;
     for (const m of await finder(list)) byKey.set(`${e}:${m.id}`, { ...map(m) } as Change['record']);
   };
-  const where = (list: string[]) => ({ where: { id: { [Op.in]: list } } });
+  // Plain rows (no model instances: a page holds thousands); the mappers read only attributes.
+  const where = (list: string[]) => ({ where: { id: { [Op.in]: list } }, raw: true });
   await load('outbreak', (l) => Outbreak.findAll(where(l)), toOutbreakRecord);
   await load('team', (l) => Team.findAll(where(l)), toTeamRecord);
   await load('site', (l) => Site.findAll(where(l)), toSiteRecord);

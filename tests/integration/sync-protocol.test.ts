@@ -162,6 +162,33 @@ describe('push', () => {
   });
 });
 
+describe('bulk path', () => {
+  it('writes the same record for plain new tallies in bulk as upsertTally writes for one', async () => {
+    const { Tally } = await import('@/models');
+    const dev = await register(field);
+    const recordedAt = '2026-01-02T03:04:05.000Z';
+    const slow = mutation(1, { recordedAt, payload: { siteId: S.c, date: day(10), newCases: 5, recoveries: 1, note: '  seen at the gate ' } });
+    const bulk = [2, 3, 4].map((seq, i) => mutation(seq, { recordedAt, payload: { siteId: S.c, date: day(11 + i), newCases: 5, recoveries: 1, note: '  seen at the gate ' } }));
+    const one = await doPush(field, dev, [slow]); // a batch of one goes through upsertTally
+    const many = await doPush(field, dev, bulk);
+    expect(one.body.results[0].fate).toBe('applied');
+    expect(many.body.results.map((r: { fate: string }) => r.fate)).toEqual(['applied', 'applied', 'applied']);
+    const strip = (r: Record<string, unknown>) => {
+      const { id: _i, date: _d, changeSeq: _c, createdAt: _a, updatedAt: _u, ...rest } = r;
+      return rest;
+    };
+    const a = (await Tally.findByPk(slow.entityId))!.get({ plain: true });
+    for (const m of bulk) {
+      const b = (await Tally.findByPk(m.entityId))!.get({ plain: true });
+      expect(strip(b)).toEqual(strip(a));
+    }
+    expect(strip(many.body.results[0].record)).toEqual(strip(one.body.results[0].record));
+    expect(one.body.results[0].record.note).toBe('seen at the gate');
+    expect(one.body.results[0].record.deviceId).toBe(dev);
+    expect(one.body.results[0].record.recordedAt).toBe(recordedAt);
+  });
+});
+
 describe('pull', () => {
   it('pages every visible change in changeSeq order with tombstones; a field officer sees only their team\'s sites', async () => {
     const seen: { entity: string; record: { id: string; changeSeq: number; deletedAt: string | null; siteId?: string } }[] = [];
