@@ -244,6 +244,11 @@ export const FIXTURES: Record<string, Fixture> = {
   },
   'GET uploads/[id]': { params: async (c) => ({ id: (await c.newSheet()).id }), expect: only('field', 'coordinator', 'supervisor') },
 
+  // ---- sitrep ----
+  'GET outbreaks/[id]/sitrep': { params: demo, expect: only('field', 'field2', 'coordinator', 'supervisor') },
+  'POST outbreaks/[id]/sitrep/send': { params: demo, body: () => ({}), expect: only('coordinator') },
+  'POST outbreaks/[id]/sitrep/capacity-check': { params: demo, body: () => ({}), expect: only('coordinator') },
+
   // ---- merge desk and ledger ----
   'GET conflicts': { query: () => `outbreak=${O}&status=all`, expect: only('coordinator') },
   'POST conflicts/[id]/settle': {

@@ -263,7 +263,7 @@ describe('role × route matrix', () => {
     for (const o of outOfProcess) console.log(`  not called here: ${o}`);
     expect(failures).toEqual([]);
     expect(cells).toBe((methods - outOfProcess.length) * ACTORS.length);
-  });
+  }, 600_000);
 
   it("shows a field officer only their own devices", async () => {
     const { GET } = await import('@/app/api/devices/route');
