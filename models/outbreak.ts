@@ -1,6 +1,6 @@
-import { DataTypes, Model, type Sequelize } from 'sequelize';
+import { DataTypes, type Sequelize } from 'sequelize';
 import { attributes, syncedFields, type ColumnSpec } from './columns';
-import type { SyncedRecord } from './synced';
+import { SyncedModel } from './synced';
 
 export const outbreakColumns: ColumnSpec = {
   ...syncedFields,
@@ -16,15 +16,7 @@ export const outbreakColumns: ColumnSpec = {
   beds: { type: DataTypes.INTEGER, allowNull: true },
 };
 
-export class Outbreak extends Model implements SyncedRecord {
-  declare id: string;
-  declare version: number;
-  declare changeSeq: number;
-  declare createdAt: Date;
-  declare updatedAt: Date;
-  declare deletedAt: Date | null;
-  declare updatedBy: string | null;
-  declare deviceId: string | null;
+export class Outbreak extends SyncedModel {
   declare name: string;
   declare disease: string;
   declare area: string;

@@ -1,6 +1,6 @@
-import { DataTypes, Model, type Sequelize } from 'sequelize';
+import { DataTypes, type Sequelize } from 'sequelize';
 import { attributes, ref, syncedFields, type ColumnSpec } from './columns';
-import type { SyncedRecord } from './synced';
+import { SyncedModel } from './synced';
 
 /** A saved scenario of an outbreak (PRODUCT.md, "Scenario"): its ScenarioInput as JSON. */
 export const scenarioColumns: ColumnSpec = {
@@ -15,15 +15,7 @@ export const scenarioColumns: ColumnSpec = {
   notes: { type: DataTypes.TEXT, allowNull: true },
 };
 
-export class Scenario extends Model implements SyncedRecord {
-  declare id: string;
-  declare version: number;
-  declare changeSeq: number;
-  declare createdAt: Date;
-  declare updatedAt: Date;
-  declare deletedAt: Date | null;
-  declare updatedBy: string | null;
-  declare deviceId: string | null;
+export class Scenario extends SyncedModel {
   declare outbreakId: string;
   declare name: string;
   declare input: string;

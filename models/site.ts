@@ -1,6 +1,6 @@
-import { DataTypes, Model, type Sequelize } from 'sequelize';
+import { DataTypes, type Sequelize } from 'sequelize';
 import { attributes, ref, syncedFields, type ColumnSpec } from './columns';
-import type { SyncedRecord } from './synced';
+import { SyncedModel } from './synced';
 import type { SiteKind } from '@/lib/validation/outbreak';
 
 
@@ -15,15 +15,7 @@ export const siteColumns: ColumnSpec = {
   population: { type: DataTypes.INTEGER, allowNull: false },
 };
 
-export class Site extends Model implements SyncedRecord {
-  declare id: string;
-  declare version: number;
-  declare changeSeq: number;
-  declare createdAt: Date;
-  declare updatedAt: Date;
-  declare deletedAt: Date | null;
-  declare updatedBy: string | null;
-  declare deviceId: string | null;
+export class Site extends SyncedModel {
   declare outbreakId: string;
   declare teamId: string | null;
   declare name: string;

@@ -1,6 +1,6 @@
 import { DataTypes, Model, type Sequelize } from 'sequelize';
 import { attributes, ref, syncedFields, type ColumnSpec } from './columns';
-import type { SyncedRecord } from './synced';
+import { SyncedModel } from './synced';
 
 /**
  * The count for one site on one day (PRODUCT.md, "Tally"). At most one live tally per site and
@@ -25,15 +25,7 @@ export const tallyColumns: ColumnSpec = {
   recordedAt: { type: DataTypes.DATE, allowNull: true },
 };
 
-export class Tally extends Model implements SyncedRecord {
-  declare id: string;
-  declare version: number;
-  declare changeSeq: number;
-  declare createdAt: Date;
-  declare updatedAt: Date;
-  declare deletedAt: Date | null;
-  declare updatedBy: string | null;
-  declare deviceId: string | null;
+export class Tally extends SyncedModel {
   declare outbreakId: string;
   declare siteId: string;
   declare date: string;

@@ -1,6 +1,6 @@
 import { DataTypes, Model, type Sequelize } from 'sequelize';
 import { attributes, ref, syncedFields, timestamps, type ColumnSpec } from './columns';
-import type { SyncedRecord } from './synced';
+import { SyncedModel } from './synced';
 
 export const teamColumns: ColumnSpec = {
   ...syncedFields,
@@ -8,15 +8,7 @@ export const teamColumns: ColumnSpec = {
   name: { type: DataTypes.STRING(120), allowNull: false },
 };
 
-export class Team extends Model implements SyncedRecord {
-  declare id: string;
-  declare version: number;
-  declare changeSeq: number;
-  declare createdAt: Date;
-  declare updatedAt: Date;
-  declare deletedAt: Date | null;
-  declare updatedBy: string | null;
-  declare deviceId: string | null;
+export class Team extends SyncedModel {
   declare outbreakId: string;
   declare name: string;
 }
