@@ -31,6 +31,14 @@ export function SitrepReport({ data }: { data: SitrepData }) {
 
   return (
     <article className="sitrep flex flex-col gap-4" data-testid="sitrep">
+      {/* A4 print: the app shell is hidden (no-print), the report fills the page in a smaller type. */}
+      <style>{`@media print {
+        .sitrep { font-size: 9.5pt; line-height: 1.35; }
+        .sitrep h1 { font-size: 16pt; } .sitrep h2 { font-size: 12pt; }
+        .sitrep-section, .sitrep-chart, .sitrep table tr { break-inside: avoid; }
+        .sitrep .bg-panel { background: #fff !important; }
+        main { max-width: none !important; padding: 0 !important; }
+      }`}</style>
       <header className="flex flex-col gap-1">
         <p className="text-sm font-bold uppercase tracking-wide text-accent">Situation report</p>
         <h1>{o.name}</h1>

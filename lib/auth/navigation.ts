@@ -21,12 +21,13 @@ const MERGE = item('/merge', 'Merge desk', true, false);
 const LEDGER = item('/ledger', 'Sync ledger', false, false);
 const SITREP = item('/sitrep', 'Sitrep', true, false);
 const MANAGE = item('/manage', 'Outbreaks & sites', false, false);
+const SHEETS = item('/sheets', 'Tally sheets', true, false);
 
 /** Navigation per role (PRODUCT.md, "People and roles"). */
 export const NAVIGATION: Record<Role, NavItem[]> = {
   field: [item('/field', 'Home', false), ENTRY, TALLIES, SCENARIOS, FORECAST, SYNC],
-  coordinator: [OVERVIEW, ENTRY, TALLIES, SCENARIOS, FORECAST, MERGE, SITREP, MANAGE, SYNC],
-  supervisor: [OVERVIEW, TALLIES, FORECAST, LEDGER, SITREP],
+  coordinator: [OVERVIEW, ENTRY, TALLIES, SCENARIOS, FORECAST, MERGE, SITREP, SHEETS, MANAGE, SYNC],
+  supervisor: [OVERVIEW, TALLIES, FORECAST, LEDGER, SITREP, SHEETS],
   admin: [item('/admin', 'Users', false, false), item('/mail', 'Sent mail', false, false)],
 };
 

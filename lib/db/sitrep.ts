@@ -159,12 +159,15 @@ export async function officialForecast(outbreakId: string): Promise<SitrepForeca
 function computedForecast(
   outbreak: Outbreak,
   incidence: number[],
+  reported: boolean[],
   admissionFraction: number,
 ): SitrepForecast | null {
   const dataUntil = incidence.length - 1;
   const days: number[] = [];
   const values: number[] = [];
+  // Days 1..cut-off on which some site reported (as the forecast screen fits): a 0 on a silent day is no report.
   for (let d = 1; d <= dataUntil; d++) {
+    if (!reported[d]) continue;
     days.push(d);
     values.push(incidence[d]!);
   }
@@ -187,7 +190,7 @@ function computedForecast(
   return fromEnsemble(
     {
       source: 'computed', scenarioId: null, scenarioVersion: null, name: 'Computed for this report', publishedAt: null, publishedBy: null,
-      method: `Computed for this report (no official forecast is published): an SIR model fitted to the daily cases of days 1–${dataUntil} by Poisson maximum likelihood (β, γ and the initial infectious), then ${SITREP_RUNS} RK4 runs over the fit's parameter draws; the band is their 5th–95th percentile.`,
+      method: `Computed for this report (no official forecast is published): an SIR model fitted to the daily cases of days 1–${dataUntil} (the days some site reported) by Poisson maximum likelihood (β, γ and the initial infectious), then ${SITREP_RUNS} RK4 runs over the fit's parameter draws; the band is their 5th–95th percentile.`,
       input, beds, R0: round(fit.R0, 2), R0Range: r0 ? [round(r0[0], 2), round(r0[1], 2)] : null,
     },
     String(outbreak.startDate), ens, true,
@@ -238,9 +241,13 @@ export async function getSitrep(actor: Actor, outbreakId: string, opts: { today?
   const cutoff = curve.cutoff;
   const dataUntil = cutoff ? daysBetween(startDate, cutoff) : -1;
   const incidence: number[] = dataUntil >= 0 ? new Array<number>(dataUntil + 1).fill(0) : [];
+  const reported: boolean[] = incidence.map(() => false);
   for (const d of curve.days) {
     const k = daysBetween(startDate, d.date);
-    if (k >= 0 && k <= dataUntil) incidence[k] = d.cases;
+    if (k >= 0 && k <= dataUntil) {
+      incidence[k] = d.cases;
+      reported[k] = d.reported;
+    }
   }
   const casesToDate = curve.days.reduce((s, d) => s + d.cases, 0);
   const casesLast7 = sumOf(incidence, dataUntil - 6, dataUntil);
@@ -311,7 +318,7 @@ export async function getSitrep(actor: Actor, outbreakId: string, opts: { today?
 
   let forecast: SitrepForecast | null = null;
   try {
-    forecast = (await officialForecast(outbreakId)) ?? computedForecast(outbreak, incidence, admittedShare ?? DEFAULT_ADMISSION_FRACTION);
+    forecast = (await officialForecast(outbreakId)) ?? computedForecast(outbreak, incidence, reported, admittedShare ?? DEFAULT_ADMISSION_FRACTION);
     if (forecast?.source === 'computed' && outbreak.beds !== null) {
       notes.push(admittedShare !== null
         ? `Bed demand of the computed forecast assumes ${round(admittedShare * 100, 1)}% of cases admitted (the admissions reported so far) for ${DEFAULT_LENGTH_OF_STAY} days.`

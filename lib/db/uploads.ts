@@ -2,7 +2,7 @@ import { createHash, randomBytes, randomUUID } from 'node:crypto';
 import { mkdirSync, renameSync, unlinkSync, writeFileSync, existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { Op } from 'sequelize';
-import { Site, TallySheet, User } from '@/models';
+import { Site, Tally, TallySheet, User } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize } from '@/lib/auth/permissions';
 import { AppError, notFound } from '@/lib/http/errors';
@@ -149,4 +149,15 @@ export async function readTallySheet(actor: Actor, id: string): Promise<{ sheet:
   const file = path.join(uploadsDir(), row.storedName);
   if (!existsSync(file)) throw notFound('Tally sheet file');
   return { sheet: toRecord(row), bytes: readFileSync(file) };
+}
+
+/** Sheets of an outbreak with the live tally's new cases for the same site and day (null: no tally). */
+export async function listTallySheetsWithCounts(actor: Actor, outbreakId: string): Promise<Array<TallySheetRecord & { newCases: number | null }>> {
+  const sheets = await listTallySheets(actor, { outbreakId });
+  if (!sheets.length) return [];
+  const tallies = await Tally.findAll({
+    where: { outbreakId, deletedAt: null, siteId: { [Op.in]: [...new Set(sheets.map((s) => s.siteId))] }, date: { [Op.in]: [...new Set(sheets.map((s) => s.date))] } },
+    attributes: ['siteId', 'date', 'newCases'],
+  });
+  return sheets.map((s) => ({ ...s, newCases: tallies.find((t) => t.siteId === s.siteId && t.date === s.date)?.newCases ?? null }));
 }

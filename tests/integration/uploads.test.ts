@@ -19,7 +19,7 @@ const GIF = new TextEncoder().encode('GIF89a\x01\x00\x01\x00\x00\x00\x00;');
 async function multipart(fields: Record<string, string>, file?: { name: string; bytes: Uint8Array; type?: string }) {
   const form = new FormData();
   for (const [k, v] of Object.entries(fields)) form.set(k, v);
-  if (file) form.set('file', new Blob([file.bytes], { type: file.type ?? 'application/octet-stream' }), file.name);
+  if (file) form.set('file', new Blob([new Uint8Array(file.bytes)], { type: file.type ?? 'application/octet-stream' }), file.name);
   const req = new Request('http://x/', { method: 'POST', body: form });
   return { rawBody: new Uint8Array(await req.arrayBuffer()), contentType: req.headers.get('content-type')! };
 }

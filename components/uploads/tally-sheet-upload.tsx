@@ -1,0 +1,80 @@
+'use client';
+import { useCallback, useEffect, useRef, useState } from 'react';
+import { Notice } from '@/components/ui/notice';
+import { checkFile, flushUploads, listQueuedSheets, onUploadQueueChange, queueSheet, removeQueuedSheet, sendSheet, startUploadSync, type QueuedSheet } from '@/lib/offline/upload-queue';
+import { TallySheetLink } from './tally-sheet-link';
+
+/**
+ * Attach a photo or scan of the paper tally sheet to a site and day. Checked on the device first
+ * (JPEG, PNG or PDF by its bytes, ≤ 5 MB); sent at once when online, else kept on the device and
+ * sent when the network is back.
+ */
+export function TallySheetUpload({ siteId, date }: { siteId: string; date: string }) {
+  const input = useRef<HTMLInputElement>(null);
+  const [message, setMessage] = useState<{ tone: 'success' | 'error' | 'info'; text: string } | null>(null);
+  const [queued, setQueued] = useState<QueuedSheet[]>([]);
+  const [busy, setBusy] = useState(false);
+  const [version, setVersion] = useState(0);
+
+  const refresh = useCallback(() => {
+    listQueuedSheets({ siteId, date }).then(setQueued).catch(() => setQueued([]));
+  }, [siteId, date]);
+
+  useEffect(() => {
+    startUploadSync();
+    refresh();
+    return onUploadQueueChange(() => {
+      refresh();
+      setVersion((v) => v + 1);
+    });
+  }, [refresh]);
+
+  async function onFile(file: File | undefined) {
+    if (!file) return;
+    setMessage(null);
+    const check = await checkFile(file);
+    if (!check.ok) {
+      setMessage({ tone: 'error', text: check.message });
+      if (input.current) input.current.value = '';
+      return;
+    }
+    setBusy(true);
+    const clientId = crypto.randomUUID();
+    const out = navigator.onLine ? await sendSheet({ clientId, siteId, date, name: file.name, blob: file }) : ({ ok: false, offline: true } as const);
+    if (out.ok) {
+      setMessage({ tone: 'success', text: 'Sheet attached.' });
+      setVersion((v) => v + 1);
+    } else if (out.offline) {
+      await queueSheet({ clientId, siteId, date, file });
+      setMessage({ tone: 'info', text: 'No connection: the sheet is kept on this device and sent when the network is back.' });
+    } else {
+      setMessage({ tone: 'error', text: out.message });
+    }
+    setBusy(false);
+    if (input.current) input.current.value = '';
+  }
+
+  return (
+    <div className="flex flex-col gap-2" data-testid="tally-sheet-upload">
+      <label className="inline-flex min-h-touch cursor-pointer items-center gap-2 self-start rounded-lg border-2 border-ink/30 bg-white px-4 font-bold hover:border-accent">
+        {busy ? 'Sending…' : 'Attach paper sheet (photo or PDF)'}
+        <input ref={input} type="file" accept="image/jpeg,image/png,application/pdf" className="sr-only" disabled={busy}
+          onChange={(e) => void onFile(e.target.files?.[0])} />
+      </label>
+      <p className="text-sm text-ink/70">JPEG, PNG or PDF, at most 5 MB. Only aggregate counts: make sure the sheet shows no names.</p>
+      <TallySheetLink key={version} siteId={siteId} date={date} />
+      {queued.length > 0 && (
+        <ul className="text-sm" data-testid="tally-sheet-queued">
+          {queued.map((q) => (
+            <li key={q.clientId} className="flex flex-wrap items-center gap-2">
+              <span>{q.name} — {q.error ? <span className="font-bold text-warning">refused: {q.error}</span> : 'waiting to be sent'}</span>
+              {q.error ? <button type="button" className="min-h-touch text-accent underline" onClick={() => void removeQueuedSheet(q.clientId)}>Remove</button>
+                : <button type="button" className="min-h-touch text-accent underline" onClick={() => void flushUploads()}>Send now</button>}
+            </li>
+          ))}
+        </ul>
+      )}
+      {message && <Notice tone={message.tone}>{message.text}</Notice>}
+    </div>
+  );
+}

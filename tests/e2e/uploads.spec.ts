@@ -1,0 +1,38 @@
+import { test, expect } from '@playwright/test';
+import { signIn, DEMO_OUTBREAK } from './helpers';
+
+// [pub] PNG signature (RFC 2083 §3.1) followed by filler; the server reads the type from these bytes.
+const PNG = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, ...new Array(64).fill(1)]);
+const HTML = Buffer.from('<!doctype html><html><body>not a sheet</body></html>');
+
+test.describe('tally-sheet uploads', () => {
+  test('a coordinator attaches a sheet, a forged one is refused, an offline one waits and is sent on reconnect', async ({ page, context }) => {
+    await signIn(page, 'coordinator@marrowbend.example');
+    await page.goto(`/sheets?outbreak=${DEMO_OUTBREAK}`);
+    const upload = page.getByTestId('tally-sheet-upload');
+    const file = upload.locator('input[type=file]');
+
+    await file.setInputFiles({ name: 'sheet.png', mimeType: 'image/png', buffer: HTML });
+    await expect(upload.getByRole('alert')).toContainText('This file is a web page or SVG although its name ends in .png, not a JPEG, PNG or PDF.');
+
+    await file.setInputFiles({ name: 'alder-sheet.png', mimeType: 'image/png', buffer: PNG });
+    await expect(upload.getByText('Sheet attached.')).toBeVisible();
+    await expect(upload.getByTestId('tally-sheet-link')).toContainText('Sheet (image)');
+
+    await context.setOffline(true);
+    await file.setInputFiles({ name: 'offline-sheet.png', mimeType: 'image/png', buffer: PNG });
+    await expect(upload.getByText(/kept on this device/)).toBeVisible();
+    await expect(upload.getByTestId('tally-sheet-queued')).toContainText('offline-sheet.png — waiting to be sent');
+    await page.screenshot({ path: '/tmp/ebbcast-sheet-offline.png', fullPage: true });
+    await context.setOffline(false);
+    await expect(upload.getByTestId('tally-sheet-queued')).toHaveCount(0);
+    await expect(upload.getByTestId('tally-sheet-link')).toContainText('Sheet 2 (image)');
+
+    await page.reload();
+    await expect(page.getByTestId('sheets-table').getByRole('link', { name: /Sheet \(image\)/ })).toHaveCount(2);
+    const href = await page.getByTestId('sheets-table').getByRole('link', { name: /Sheet \(image\)/ }).first().getAttribute('href');
+    const res = await page.request.get(href!);
+    expect(res.headers()['content-type']).toBe('image/png');
+    expect(Buffer.from(await res.body()).equals(PNG)).toBe(true);
+  });
+});
