@@ -1,15 +1,24 @@
 'use client';
 /**
- * Tallies for the screens: hooks and writes. From the API for now; the offline layer will serve the
- * same exports from IndexedDB (so keep shapes plain and this file small).
+ * Tallies for the screens: hooks and writes, served from this device's database (lib/offline) so
+ * that the screens work the same online and offline. A write goes into IndexedDB and the outbox
+ * in one transaction and reaches the server with the next sync (SYNC.md); what other devices
+ * recorded arrives by pull. CSV import and export stay online calls (files go to the server).
  */
-import { useEffect } from 'react';
-import type { ConflictRecord, TallyRecord } from '@/lib/types/records';
-import type { EpiCurve } from '@/lib/tallies/curve';
-import type { TallyInput } from '@/lib/validation/tally';
-import { localToday } from '@/lib/tallies/dates';
-import { apiFetch } from './api';
+import { useEffect, useMemo } from 'react';
+import type { ConflictRecord, SiteRecord, TallyRecord } from '@/lib/types/records';
+import { useConnectivity } from '@/lib/stores/connectivity';
 import { useResource } from './use-resource';
+import { computeEpiCurve, type EpiCurve } from '@/lib/tallies/curve';
+import { addDays, dayRange, localToday } from '@/lib/tallies/dates';
+import { tallyInputSchema, type TallyInput } from '@/lib/validation/tally';
+import { normaliseValues, sameValues } from '@/lib/sync/tally-rules';
+import type { LocalRecord } from '@/lib/sync/engine';
+import { localDb } from '@/lib/offline/db';
+import { deleteLocal, requestSync, saveLocal } from '@/lib/offline/sync-client';
+import { useLive } from '@/lib/offline/use-live';
+import { apiFetch, ApiError } from './api';
+import { fieldsFromIssues } from '@/lib/http/errors';
 
 export interface TallyFilter {
   siteId?: string;
@@ -28,16 +37,6 @@ export interface SaveResult {
   conflict?: ConflictRecord;
 }
 
-/** Screens reload their tallies when any write here succeeds. */
-const listeners = new Set<() => void>();
-const changed = () => listeners.forEach((f) => f());
-function useOnChange(reload: () => void) {
-  useEffect(() => {
-    listeners.add(reload);
-    return () => void listeners.delete(reload);
-  }, [reload]);
-}
-
 const qs = (o: Record<string, string | number | undefined>) => {
   const p = new URLSearchParams();
   for (const [k, v] of Object.entries(o)) if (v !== undefined && v !== '') p.set(k, String(v));
@@ -45,20 +44,119 @@ const qs = (o: Record<string, string | number | undefined>) => {
   return s ? `?${s}` : '';
 };
 
-const filterQuery = (f: TallyFilter) => ({ site: f.siteId, from: f.from, to: f.to, limit: f.limit, offset: f.offset, sort: f.sort });
+/**
+ * A stored row as the screens see it. A tally not yet on the server is stored with version 0; it
+ * is shown as version 1 (the version it will become), so forms that send `baseVersion` stay valid.
+ * The outbox takes the base version from the stored row, never from the form.
+ */
+const asRecord = (r: LocalRecord): TallyRecord => ({ ...(r as unknown as TallyRecord), version: Math.max(1, Number(r.version)) });
+
+const live = (r: LocalRecord) => !r.deletedAt;
+
+interface LocalState<T> {
+  data: T | undefined;
+  error: Error | null;
+  loading: boolean;
+  reload: () => void;
+}
+
+function state<T>(data: T | undefined): LocalState<T> {
+  return { data, error: null, loading: data === undefined, reload: () => void requestSync() };
+}
+
+async function outbreakTallies(outbreakId: string, siteId?: string | null): Promise<LocalRecord[]> {
+  const db = localDb();
+  const rows = siteId ? await db.tallies.where('siteId').equals(siteId).toArray() : await db.tallies.where('outbreakId').equals(outbreakId).toArray();
+  return rows.filter((r) => live(r) && r.outbreakId === outbreakId);
+}
+
+function compare(sort: string, siteName: (id: string) => string) {
+  const desc = sort.startsWith('-');
+  const key = sort.replace(/^-/, '');
+  const val = (r: TallyRecord): string | number => {
+    if (key === 'site') return siteName(r.siteId);
+    if (key === 'newCases') return r.newCases;
+    if (key === 'recordedAt') return r.recordedAt ?? '';
+    if (key === 'updatedAt') return r.updatedAt ?? '';
+    return r.date;
+  };
+  return (a: TallyRecord, b: TallyRecord) => {
+    const x = val(a), y = val(b);
+    const c = x < y ? -1 : x > y ? 1 : 0;
+    if (c !== 0) return desc ? -c : c;
+    const s = siteName(a.siteId).localeCompare(siteName(b.siteId));
+    return s !== 0 ? s : b.date.localeCompare(a.date);
+  };
+}
+
+const ME_KEY = 'ebbcast.me';
+const PEOPLE_KEY = 'ebbcast.people';
+/** Names of the people behind recordedBy/updatedBy: the signed-in user, plus names the server sent before (kept for offline). */
+function localPeople(): Record<string, string> {
+  try {
+    const me = JSON.parse(localStorage.getItem(ME_KEY) ?? 'null') as { id: string; name: string } | null;
+    const known = JSON.parse(localStorage.getItem(PEOPLE_KEY) ?? '{}') as Record<string, string>;
+    return { ...known, ...(me ? { [me.id]: me.name } : {}) };
+  } catch {
+    return {};
+  }
+}
+function rememberPeople(p: Record<string, string> | undefined) {
+  if (!p || !Object.keys(p).length) return;
+  try {
+    localStorage.setItem(PEOPLE_KEY, JSON.stringify({ ...JSON.parse(localStorage.getItem(PEOPLE_KEY) ?? '{}'), ...p }));
+  } catch {
+    /* storage full: names are a convenience */
+  }
+}
+const myId = (): string | null => {
+  try {
+    return (JSON.parse(localStorage.getItem(ME_KEY) ?? 'null') as { id: string } | null)?.id ?? null;
+  } catch {
+    return null;
+  }
+};
 
 export function useTallies(outbreakId: string | null, filter: TallyFilter = {}) {
-  const url = outbreakId ? `/api/outbreaks/${outbreakId}/tallies${qs(filterQuery(filter))}` : null;
-  const r = useResource<{ rows: TallyRecord[]; total: number; people?: Record<string, string> }>(url);
-  useOnChange(r.reload);
-  return { ...r, rows: r.data?.rows ?? [], total: r.data?.total ?? 0, people: r.data?.people ?? {} };
+  const { siteId, from, to, limit = 100, offset = 0, sort = '-date' } = filter;
+  const data = useLive(async () => {
+    if (!outbreakId) return { rows: [] as TallyRecord[], total: 0, people: {} as Record<string, string> };
+    const db = localDb();
+    const sites = new Map((await db.sites.where('outbreakId').equals(outbreakId).toArray()).map((s) => [s.id, String(s.name)]));
+    const rows = (await outbreakTallies(outbreakId, siteId))
+      .filter((r) => (!from || String(r.date) >= from) && (!to || String(r.date) <= to))
+      .map(asRecord)
+      .sort(compare(sort, (id) => sites.get(id) ?? ''));
+    const page = rows.slice(Math.max(0, offset), Math.max(0, offset) + Math.min(Math.max(limit, 1), 1000));
+    return { rows: page, total: rows.length, people: localPeople() };
+  }, [outbreakId, siteId, from, to, limit, offset, sort]);
+  // Online, the server's page names the recorders (other people's names are not on the device).
+  const online = useConnectivity((c) => c.online);
+  const names = useResource<{ people?: Record<string, string> }>(
+    online && outbreakId ? `/api/outbreaks/${outbreakId}/tallies${qs({ site: siteId, from, to, limit, offset, sort })}` : null,
+  );
+  useEffect(() => rememberPeople(names.data?.people), [names.data]);
+  const s = state(outbreakId ? data : { rows: [], total: 0, people: {} });
+  const people = useMemo(() => ({ ...(data?.people ?? {}), ...(names.data?.people ?? {}) }), [data, names.data]);
+  return { ...s, rows: data?.rows ?? [], total: data?.total ?? 0, people };
 }
 
 export function useEpiCurve(outbreakId: string | null, siteId?: string | null) {
-  const url = outbreakId ? `/api/outbreaks/${outbreakId}/curve${qs({ site: siteId ?? undefined, today: localToday() })}` : null;
-  const r = useResource<{ curve: EpiCurve }>(url);
-  useOnChange(r.reload);
-  return { ...r, curve: r.data?.curve };
+  const today = localToday();
+  const data = useLive(async () => {
+    if (!outbreakId) return null;
+    const db = localDb();
+    const outbreak = await db.outbreaks.get(outbreakId);
+    if (!outbreak || outbreak.deletedAt) return null;
+    const sites = (await db.sites.where('outbreakId').equals(outbreakId).toArray()).filter(live);
+    const tallies = await outbreakTallies(outbreakId, siteId);
+    const inView = siteId ? 1 : sites.length;
+    return computeEpiCurve(tallies.map((t) => ({ date: String(t.date), newCases: Number(t.newCases) })), {
+      startDate: String(outbreak.startDate), today, sitesInView: inView, siteId: siteId ?? null,
+    });
+  }, [outbreakId, siteId, today]);
+  const s = state<{ curve: EpiCurve } | undefined>(data === undefined ? undefined : data ? { curve: data } : undefined);
+  return { ...s, loading: data === undefined, curve: data ?? undefined };
 }
 
 export interface ReportingGrid {
@@ -68,41 +166,107 @@ export interface ReportingGrid {
 }
 
 export function useReportingGrid(outbreakId: string | null, range: { from?: string; to?: string } = {}) {
-  const url = outbreakId ? `/api/outbreaks/${outbreakId}/tallies/grid${qs(range)}` : null;
-  const r = useResource<ReportingGrid>(url);
-  useOnChange(r.reload);
-  return { ...r, grid: r.data };
+  const to = range.to ?? localToday();
+  const from = range.from ?? addDays(to, -27);
+  const data = useLive(async (): Promise<ReportingGrid | null> => {
+    if (!outbreakId) return null;
+    const db = localDb();
+    const sites = (await db.sites.where('outbreakId').equals(outbreakId).toArray()).filter(live) as unknown as SiteRecord[];
+    sites.sort((a, b) => a.name.localeCompare(b.name));
+    const days = new Set(dayRange(from <= to ? from : to, to));
+    const bySite = new Map<string, Record<string, number>>();
+    for (const t of await outbreakTallies(outbreakId)) {
+      const d = String(t.date);
+      if (!days.has(d)) continue;
+      const m = bySite.get(String(t.siteId)) ?? {};
+      m[d] = Number(t.newCases);
+      bySite.set(String(t.siteId), m);
+    }
+    return { from, to, sites: sites.map((s) => ({ siteId: s.id, name: s.name, teamId: s.teamId, dates: bySite.get(s.id) ?? {} })) };
+  }, [outbreakId, from, to]);
+  const s = state(data === null ? undefined : data);
+  return { ...s, loading: data === undefined, grid: data ?? undefined };
 }
 
-/** Records a new tally or, with `id` and `baseVersion`, an edit. A conflict rejects with ApiError 409. */
+function invalid(fields: Record<string, string>, message = 'Some fields are not valid.'): ApiError {
+  return new ApiError(400, 'validation_failed', message, fields);
+}
+
+/**
+ * Records a new tally or an edit, on this device (and in the outbox). The same site and day can
+ * hold one live tally: a second one for a day already recorded here becomes an edit of that one,
+ * or "unchanged" when the counts are the same. Disagreements with other devices are found by the
+ * server at sync and go to the merge desk.
+ */
 export async function saveTally(input: TallyInput): Promise<SaveResult> {
-  const { id, ...rest } = input;
-  const result = id && input.baseVersion
-    ? await apiFetch<SaveResult>(`/api/tallies/${id}`, { method: 'PUT', json: rest })
-    : await apiFetch<SaveResult>('/api/tallies', { method: 'POST', json: input });
-  changed();
-  return result;
+  const { baseVersion: _ignored, ...rest } = input;
+  const parsed = tallyInputSchema.safeParse(rest);
+  if (!parsed.success) throw invalid(fieldsFromIssues(parsed.error.issues));
+  const v = parsed.data;
+  const db = localDb();
+  const site = await db.sites.get(v.siteId);
+  if (!site || site.deletedAt) throw new ApiError(404, 'not_found', 'Site was not found on this device.');
+  const outbreak = await db.outbreaks.get(String(site.outbreakId));
+  if (outbreak && v.date < String(outbreak.startDate)) throw invalid({ date: `Before the outbreak's day 0 (${String(outbreak.startDate)}).` }, "The date is before the outbreak's day 0.");
+  if (v.date > addDays(localToday(), 1)) throw invalid({ date: 'The date is in the future.' }, 'The date is in the future.');
+  let existing = v.id ? await db.tallies.get(v.id) : undefined;
+  if (!existing || existing.deletedAt) {
+    const sameDay = (await db.tallies.where('[siteId+date]').equals([v.siteId, v.date]).toArray()).find(live);
+    if (sameDay && sameDay.id !== v.id) existing = sameDay;
+  }
+  if (existing && existing.deletedAt) existing = undefined;
+  const values = normaliseValues(v);
+  if (existing && sameValues(normaliseValues(existing as unknown as TallyRecord), values)) return { status: 'unchanged', tally: asRecord(existing) };
+  const now = new Date().toISOString();
+  const me = myId();
+  const record: LocalRecord = {
+    ...(existing ?? {}),
+    id: existing?.id ?? v.id ?? crypto.randomUUID(),
+    version: Number(existing?.version ?? 0),
+    changeSeq: Number(existing?.changeSeq ?? 0),
+    deletedAt: null,
+    outbreakId: String(site.outbreakId),
+    siteId: v.siteId,
+    date: v.date,
+    ...values,
+    createdAt: (existing?.createdAt as string | undefined) ?? now,
+    updatedAt: now,
+    updatedBy: me,
+    deviceId: null,
+    recordedBy: (existing?.recordedBy as string | null | undefined) ?? me,
+    recordedAt: (existing?.recordedAt as string | null | undefined) ?? now,
+  };
+  await saveLocal('tally', record, { siteId: v.siteId, date: v.date, ...values });
+  return { status: 'applied', tally: asRecord((await db.tallies.get(record.id)) ?? record) };
 }
 
-export async function removeTally(id: string, baseVersion: number): Promise<SaveResult> {
-  const result = await apiFetch<SaveResult>(`/api/tallies/${id}${qs({ baseVersion })}`, { method: 'DELETE' });
-  changed();
-  return result;
+/** Deletes a tally on this device (a tombstone until the server answers) and queues the delete. */
+export async function removeTally(id: string, _baseVersion: number): Promise<SaveResult> {
+  const db = localDb();
+  const existing = await db.tallies.get(id);
+  if (!existing) throw new ApiError(404, 'not_found', 'Tally was not found on this device.');
+  if (existing.deletedAt) return { status: 'unchanged', tally: asRecord(existing) };
+  await deleteLocal('tally', existing);
+  return { status: 'applied', tally: asRecord((await db.tallies.get(id)) ?? existing) };
 }
 
 export type { ImportReport } from '@/lib/tallies/csv';
 import type { ImportReport } from '@/lib/tallies/csv';
 
-/** Sends a CSV file for the row-by-row report (`commit` false) or to write its valid rows. */
+/**
+ * Sends a CSV file for the row-by-row report (`commit` false) or to write its valid rows (online:
+ * the file goes to the server). After a commit the device syncs, so the new rows arrive by pull.
+ */
 export async function importTalliesFile(outbreakId: string, file: Blob, opts: { commit: boolean; expected?: number }): Promise<ImportReport> {
   const q = qs({ mode: opts.commit ? 'commit' : 'preview', expect: opts.expected, today: localToday() });
   const { report } = await apiFetch<{ report: ImportReport }>(`/api/outbreaks/${outbreakId}/tallies/import${q}`, {
     method: 'POST', body: file, headers: { 'content-type': 'text/csv' },
   });
-  if (opts.commit) changed();
+  if (opts.commit) void requestSync();
   return report;
 }
 
 export function exportTalliesUrl(outbreakId: string, filter: Pick<TallyFilter, 'siteId' | 'from' | 'to'> = {}): string {
   return `/api/outbreaks/${outbreakId}/tallies/export${qs({ site: filter.siteId, from: filter.from, to: filter.to })}`;
 }
+
