@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import { Op, QueryTypes, type Transaction, type WhereOptions } from 'sequelize';
-import { Conflict, Outbreak, ServerCounter, Site, Tally, User } from '@/models';
+import { Conflict, Outbreak, Site, Tally, User } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize } from '@/lib/auth/permissions';
 import { AppError, notFound, validationError } from '@/lib/http/errors';
@@ -11,7 +11,7 @@ import { addDays, daysBetween, isIsoDay, utcToday } from '@/lib/tallies/dates';
 import { CsvTooManyRowsError, parseTallyCsv, serialiseTallyCsv, validateTallyRows, type CsvIssueCode, type ImportReport } from '@/lib/tallies/csv';
 import type { TALLY_SORT_KEYS } from '@/lib/tallies/query';
 import { db, dialect, writeTx } from './connection';
-import { nextChangeSeq } from './counters';
+import { nextChangeSeq, reserveChangeSeqs } from './counters';
 import { appendLedger } from './ledger';
 import { syncMeta } from './mappers';
 
@@ -295,14 +295,6 @@ export async function exportTalliesCsv(actor: Actor, outbreakId: string, filter:
 /** Issues sent back in one answer; the counts per kind cover them all. */
 export const MAX_REPORTED_ISSUES = 2000;
 
-
-/** Reserves `n` consecutive change counter values in one statement (import: one per row, in order). */
-async function reserveChangeSeqs(t: Transaction, n: number): Promise<number> {
-  if (n === 1) return nextChangeSeq(t);
-  const first = await nextChangeSeq(t);
-  if (n > 1) await ServerCounter.increment('value', { by: n - 1, where: { name: 'change' }, transaction: t });
-  return first;
-}
 
 const IMPORT_COLUMNS = ['id', 'version', 'change_seq', 'created_at', 'updated_at', 'deleted_at', 'updated_by', 'device_id', 'outbreak_id', 'site_id',
   'date', 'new_cases', 'recoveries', 'deaths', 'admissions', 'note', 'recorded_by', 'recorded_at'] as const;
