@@ -8,6 +8,7 @@
  */
 import { liveQuery } from 'dexie';
 import type { Actor } from '@/lib/auth/actor';
+import { roleMay } from '@/lib/auth/roles';
 import { backoffMs, queueChange, syncOnce, type LocalRecord, type SyncReport } from '@/lib/sync/engine';
 import type { SyncEntity } from '@/lib/validation/sync';
 import { useConnectivity } from '@/lib/stores/connectivity';
@@ -106,6 +107,9 @@ async function run(): Promise<SyncReport> {
       report = { ok: false, error: 'unauthenticated', message: 'Sign in to sync: the session has ended. Your changes wait on this device.', pushed: { applied: 0, duplicate: 0, conflict: 0, rejected: 0 }, pulled: 0, results: [] };
     } else if (!who.user) {
       report = { ok: false, error: who.status === 0 ? 'offline' : 'server', message: who.status === 0 ? 'No connection to the server.' : `The server answered ${who.status}.`, pushed: { applied: 0, duplicate: 0, conflict: 0, rejected: 0 }, pulled: 0, results: [] };
+    } else if (!roleMay(who.user.role, 'sync:pull')) {
+      // Administrators keep no field data on a device: nothing to sync.
+      report = { ok: true, pushed: { applied: 0, duplicate: 0, conflict: 0, rejected: 0 }, pulled: 0, results: [] };
     } else if (!(await adoptUser(who.user))) {
       report = { ok: false, error: 'refused', message: 'This device holds unsynced changes of another user; they sync when that user signs in.', pushed: { applied: 0, duplicate: 0, conflict: 0, rejected: 0 }, pulled: 0, results: [] };
     } else {
