@@ -184,7 +184,7 @@ export function ForecastPanel({ fit, observed, outbreakId, beds: outbreakBeds, s
             )}
             {notes.bedsExceededShare !== null && (
               <Figure testId="fc-beds-exceeded" label="Beds first exceeded" tone={notes.bedsExceededShare > 0.5 ? 'warning' : undefined}
-                value={notes.bedsExceededDay !== null ? dayLabel(startDate, notes.bedsExceededDay) : 'not in most runs'}
+                value={notes.bedsExceededDay !== null ? dayLabel(startDate, notes.bedsExceededDay) : notes.bedsExceededShare === 0 ? 'never in the horizon' : 'not in most runs'}
                 reading={notes.bedsExceededShare === 0
                   ? 'in no run does demand exceed the beds'
                   : `in ${Math.round(notes.bedsExceededShare * 100)}% of runs${notes.bedsExceededRange?.[0] != null ? `, from ${dayLabel(startDate, notes.bedsExceededRange[0])} at the earliest (5%)` : ''}${notes.bedsExceededRange?.[1] != null ? ` to ${dayLabel(startDate, notes.bedsExceededRange[1])} (95%)` : ''}`} />

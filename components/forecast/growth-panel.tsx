@@ -53,7 +53,7 @@ export function GrowthPanel({ observed, startDate }: { observed: Observed; start
         <div className="grid gap-x-6 md:grid-cols-2">
           <Figure testId="growth-r" label="Growth rate r (95% interval)" value={`${fmt(g.r)} per day (${range(g.interval)})`} reading={readGrowth(g.r)} />
           <Figure testId="growth-doubling" label="Doubling time (95% interval)"
-            value={g.r > 0 ? `${fmt(g.doublingTime)} days (${range(doublingIntervalOf(g.interval))})` : 'not doubling'} reading={readDoubling(g.r > 0 ? g.doublingTime : null)} />
+            value={g.r > 0 ? `${fmt(g.doublingTime)} days (${range(doublingIntervalOf(g.interval))})` : 'not doubling'} reading={readDoubling(g.r > 0 ? g.doublingTime : null, 'in this window')} />
           <Figure testId="growth-R0-sir" label="R0 from growth, SIR (95% interval)" value={`${fmt(sir(g.r))} (${range([sir(g.interval[0]), sir(g.interval[1])])})`}
             reading={`with a ${fmt(period)}-day infectious period: ${readR0(sir(g.r))}`} />
           <Figure testId="growth-R0-seir" label="R0 from growth, SEIR (95% interval)" value={`${fmt(seir(g.r))} (${range([seir(g.interval[0]), seir(g.interval[1])])})`}

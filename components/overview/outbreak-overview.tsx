@@ -79,7 +79,7 @@ export function OutbreakOverview() {
               <>
                 <Figure testId="ov-growth" label="Growth, last 14 days (95% interval)" value={`${fmt(growth.r)} per day (${range(growth.interval)})`} reading={readGrowth(growth.r)} />
                 <Figure testId="ov-doubling" label="Doubling time" value={growth.r > 0 ? `${fmt(growth.doublingTime)} days (${range(growth.doublingInterval)})` : 'not doubling'}
-                  reading={readDoubling(growth.r > 0 ? growth.doublingTime : null)} />
+                  reading={readDoubling(growth.r > 0 ? growth.doublingTime : null, 'over the last 14 days')} />
               </>
             ) : (
               <p className="py-2">Not enough complete days for a growth rate yet.</p>
@@ -108,9 +108,9 @@ export function OutbreakOverview() {
                   reading={beds === null ? 'beds available are not recorded for this outbreak' : f.bedPeak > beds ? `more than the ${people(beds)} beds available` : `within the ${people(beds)} beds available`} />
               )}
               {f.bedsExceededShare !== null && (
-                <Figure testId="ov-beds-exceeded" label="Beds run out" value={f.bedsExceededDay !== null ? dayLabel(startDate, f.bedsExceededDay) : 'not in most runs'}
+                <Figure testId="ov-beds-exceeded" label="Beds run out" value={f.bedsExceededDay !== null ? dayLabel(startDate, f.bedsExceededDay) : f.bedsExceededShare === 0 ? 'never in the horizon' : 'not in most runs'}
                   tone={f.bedsExceededShare > 0.5 ? 'warning' : undefined}
-                  reading={f.bedsExceededShare === 0 ? 'in no run' : `in ${Math.round(f.bedsExceededShare * 100)}% of runs${f.bedsExceededRange?.[0] != null ? `, from ${dayLabel(startDate, f.bedsExceededRange[0])} at the earliest` : ''}`} />
+                  reading={f.bedsExceededShare === 0 ? 'in no run does demand exceed the beds' : `in ${Math.round(f.bedsExceededShare * 100)}% of runs${f.bedsExceededRange?.[0] != null ? `, from ${dayLabel(startDate, f.bedsExceededRange[0])} at the earliest` : ''}`} />
               )}
             </div>
           ) : (

@@ -37,8 +37,8 @@ export const readFinalSize = (size: number, attack: number, days: number) =>
 export const readHerd = (h: number) =>
   h > 0 ? `${pct(h, 2)} of people must be immune (recovered or vaccinated) for cases to fall` : 'no immunity is needed: each case infects fewer than one other';
 
-export const readDoubling = (d: number | null) =>
-  d === null || !Number.isFinite(d) ? 'cases are not growing at the start' : `at the start, the number of cases doubles about every ${fmt(d, 2)} days`;
+export const readDoubling = (d: number | null, when = 'at the start') =>
+  d === null || !Number.isFinite(d) ? `cases are not growing ${when}` : `${when}, the number of cases doubles about every ${fmt(d, 2)} days`;
 
 export const readBedsExceeded = (day: number | null | undefined, beds: number, start?: string | null) =>
   day === null || day === undefined ? `demand stays within the ${people(beds)} beds over the horizon` : `the ${people(beds)} beds are all taken from ${dayLabel(start, day)}`;

@@ -12,6 +12,7 @@ import { Card } from '@/components/ui/card';
 import { Notice } from '@/components/ui/notice';
 import { CompartmentChart } from '@/components/charts/compartment-chart';
 import { MultiLineChart } from '@/components/charts/multi-line-chart';
+import { dayLabel } from '@/components/charts/chart-theme';
 import { EnsemblePanel } from './ensemble-panel';
 import { InterventionTimeline } from './intervention-timeline';
 import { ModelChoice, ParameterFields } from './parameter-fields';
@@ -32,6 +33,15 @@ function fieldErrors(draft: ScenarioInput): { errors: Record<string, string>; in
     if (!(k in errors)) errors[k] = i.message;
   }
   return { errors, input: null };
+}
+
+/** When Rt first drops below 1 (immunity and interventions together), in plain words. */
+function rtReading(t: Float64Array, Rt: Float64Array, startDate: string | null): string {
+  if ((Rt[0] ?? 0) <= 1) return 'Rt starts below 1: each case infects fewer than one other and cases fall from the start.';
+  for (let k = 1; k < Rt.length; k++) {
+    if (Rt[k]! < 1) return `Rt falls below 1 on ${dayLabel(startDate, t[k]!)}: from then on each case infects fewer than one other, so cases fall.`;
+  }
+  return 'Rt stays above 1 over the whole horizon: cases are still growing at its end.';
 }
 
 /** The scenario screen: the model and its settings on the left, the live run and its figures on the right. */
@@ -123,6 +133,14 @@ export function ScenarioScreen() {
           {live.summary && input && !live.error && (
             <Card title="Figures">
               <ScenarioFigures summary={live.summary} input={input} startDate={startDate} />
+            </Card>
+          )}
+
+          {live.run && live.summary && input && !live.error && (
+            <Card title="Rt over time">
+              <MultiLineChart t={live.run.t} series={[{ label: 'Rt', values: live.summary.Rt }]} unit="Rt" height={200} startDate={startDate}
+                limit={{ value: 1, label: 'Rt = 1' }} testId="rt-run-chart" label="Effective reproduction number over time in this run" />
+              <p className="mt-1 text-sm" data-testid="rt-reading">{rtReading(live.run.t, live.summary.Rt, startDate)}</p>
             </Card>
           )}
 
