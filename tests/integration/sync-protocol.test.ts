@@ -49,7 +49,7 @@ beforeAll(async () => {
   S.b = await site('Sync test B', DEMO_IDS.teamNorth);
   S.c = await site('Sync test C', DEMO_IDS.teamNorth);
   S.lake = await site('Sync test Lake', DEMO_IDS.teamLakeshore);
-  [field, field2, coordinator, supervisor] = await Promise.all(['field', 'field2', 'coordinator', 'supervisor'].map((u) => sessionCookie(`${u}@marrowbend.example`)));
+  [field, field2, coordinator, supervisor] = (await Promise.all(['field', 'field2', 'coordinator', 'supervisor'].map((u) => sessionCookie(`${u}@marrowbend.example`)))) as [string, string, string, string];
 });
 
 describe('push', () => {
