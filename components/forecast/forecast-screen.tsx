@@ -1,7 +1,7 @@
 'use client';
 import { useEffect, useMemo } from 'react';
 import Link from 'next/link';
-import { useOutbreak, useOutbreaks } from '@/lib/data/hooks';
+import { useOutbreak, useOutbreaks, useSites } from '@/lib/data/hooks';
 import { useEpiCurve } from '@/lib/data/tallies';
 import { useOutbreakId } from '@/lib/data/use-outbreak-id';
 import type { FitCurve, FitResult } from '@/lib/model';
@@ -26,6 +26,11 @@ export function ForecastScreen() {
   const startDate = outbreak?.startDate ?? null;
   const observed = useMemo(() => observedFromCurve(curve, startDate), [curve, startDate]);
   const fitJob = useWorkerJob<{ fit: FitResult; curve: FitCurve }>();
+  // The tallies in view are those of the sites the user sees (a field officer: their teams' sites), so the
+  // population at risk is theirs too; the outbreak's own figure when no site carries one.
+  const { sites } = useSites(outbreakId);
+  const sitePeople = sites.reduce((a, s) => a + s.population, 0);
+  const population = sitePeople > 0 ? sitePeople : (outbreak?.population ?? 0);
 
   // The comparison is linked as #compare: scroll there once it has rendered.
   useEffect(() => {
@@ -40,7 +45,7 @@ export function ForecastScreen() {
         {outbreak && observed && (
           <p className="text-ink/80" data-testid="forecast-cutoff">
             {outbreak.name} · day 0 is {outbreak.startDate} · data to {observed.cutoffDate ? dayLabel(startDate, observed.dataUntil) : '—'} ·{' '}
-            {people(observed.casesToDate)} cases
+            {people(observed.casesToDate)} cases at {sites.length} sites ({people(population)} people)
           </p>
         )}
       </div>
@@ -56,7 +61,7 @@ export function ForecastScreen() {
         <>
           <Card title="Early growth"><GrowthPanel observed={observed} startDate={startDate} /></Card>
           <Card title="Rt over time"><RtPanel observed={observed} startDate={startDate} /></Card>
-          <Card title="Fit a model to the tallies"><FitPanel observed={observed} population={outbreak.population} job={fitJob} startDate={startDate} /></Card>
+          <Card title="Fit a model to the tallies"><FitPanel observed={observed} population={population} job={fitJob} startDate={startDate} /></Card>
           <Card title="Forecast from the fit">
             {fitJob.result ? (
               <ForecastPanel key={fitJob.result.fit.objective} fit={fitJob.result.fit} observed={observed} outbreakId={outbreakId} beds={outbreak.beds ?? 0} startDate={startDate} />
