@@ -162,6 +162,34 @@ describe('push', () => {
   });
 });
 
+describe('scenarios', () => {
+  it('syncs a scenario through the scenario functions: create, two offline edits of the same device, delete; another device\'s stale edit is refused alone', async () => {
+    const { Scenario } = await import('@/models');
+    const dev = await register(field);
+    const id = randomUUID();
+    const input = { model: 'SIR', population: 12660, initial: { I: 3 }, params: { beta: 0.5, gamma: 0.25 }, method: 'rk4', step: 0.25, days: 120 };
+    const sc = (seq: number, over: Record<string, unknown> = {}) =>
+      mutation(seq, { entity: 'scenario', entityId: id, payload: { outbreakId: DEMO_IDS.outbreak, name: 'Camp closure', input, notes: null }, ...over });
+    const r = await doPush(field, dev, [
+      sc(1),
+      sc(2, { payload: { outbreakId: DEMO_IDS.outbreak, name: 'Camp closure, edited', input, notes: null } }),
+      sc(3, { baseVersion: 1, payload: { outbreakId: DEMO_IDS.outbreak, name: 'Camp closure, edited twice', input, notes: null } }),
+    ]);
+    expect(r.body.results.map((x: { fate: string }) => x.fate)).toEqual(['applied', 'applied', 'applied']);
+    expect((await Scenario.findByPk(id))!.version).toBe(3); // the device's own edits chain on its last write
+    const other = await register(coordinator);
+    const stale = await doPush(coordinator, other, [sc(1, { baseVersion: 1, payload: { outbreakId: DEMO_IDS.outbreak, name: 'Coordinator edit', input, notes: null } })]);
+    expect(stale.body.results[0].fate).toBe('rejected');
+    expect(stale.body.results[0].reason).toBe('stale_version');
+    expect(stale.body.results[0].record.name).toBe('Camp closure, edited twice'); // the device can put the server copy back
+    const del = await doPush(field, dev, [sc(4, { op: 'delete', payload: null, baseVersion: 3 })]);
+    expect(del.body.results[0].fate).toBe('applied');
+    expect((await Scenario.findByPk(id))!.deletedAt).not.toBeNull();
+    const again = await doPush(coordinator, other, [sc(2, { op: 'delete', payload: null, baseVersion: 4 })]);
+    expect(again.body.results[0].fate).toBe('duplicate'); // already deleted: agreement
+  });
+});
+
 describe('bulk path', () => {
   it('writes the same record for plain new tallies in bulk as upsertTally writes for one', async () => {
     const { Tally } = await import('@/models');
