@@ -102,20 +102,20 @@ export default async function bench(): Promise<BenchRow[]> {
     const walls: number[] = [];
     let counted = 0;
     for (let rep = 0; rep < 3; rep++) {
-      const t0 = await page.evaluate(() => {
-        const w = window as unknown as { __gap: number; __tick: boolean };
-        w.__gap = 0;
-        w.__tick = true;
+      // A string, not a function: tsx wraps named inner functions in a helper the page does not have.
+      const t0 = await page.evaluate<number>(`(() => {
+        window.__gap = 0;
+        window.__tick = true;
         let last = performance.now();
         const tick = () => {
           const now = performance.now();
-          w.__gap = Math.max(w.__gap, now - last);
+          window.__gap = Math.max(window.__gap, now - last);
           last = now;
-          if (w.__tick) setTimeout(tick, 4);
+          if (window.__tick) setTimeout(tick, 4);
         };
         setTimeout(tick, 4);
         return performance.now();
-      });
+      })()`);
       await page.getByTestId('ensemble-run').click();
       // The bar appears, then goes when the bands arrive (a run faster than the first check skips the wait).
       await page.getByTestId('ensemble-progress').waitFor({ state: 'attached', timeout: 5_000 }).catch(() => undefined);
