@@ -10,14 +10,11 @@ import type { LocalRecord } from '@/lib/sync/engine';
 import { localDb } from '@/lib/offline/db';
 import { cacheServerRecords, requestSync } from '@/lib/offline/sync-client';
 import { useLive } from '@/lib/offline/use-live';
+import { usePulled } from '@/lib/offline/use-pulled';
 import { useResource, type Resource } from './use-resource';
 
 const live = (r: LocalRecord) => !r.deletedAt;
 
-/** Whether a pull has ever completed on this device (its cursor moved). */
-function usePulled(): boolean | undefined {
-  return useLive(async () => Number((await localDb().meta.get('cursor'))?.value ?? 0) > 0, []);
-}
 
 /**
  * Local rows, or the API while the device has never pulled: `url` is asked only then, and what it

@@ -17,6 +17,7 @@ import type { LocalRecord } from '@/lib/sync/engine';
 import { localDb } from '@/lib/offline/db';
 import { deleteLocal, requestSync, saveLocal } from '@/lib/offline/sync-client';
 import { useLive } from '@/lib/offline/use-live';
+import { usePulled } from '@/lib/offline/use-pulled';
 import { apiFetch, ApiError } from './api';
 import { fieldsFromIssues } from '@/lib/http/errors';
 
@@ -130,14 +131,19 @@ export function useTallies(outbreakId: string | null, filter: TallyFilter = {}) 
     const page = rows.slice(Math.max(0, offset), Math.max(0, offset) + Math.min(Math.max(limit, 1), 1000));
     return { rows: page, total: rows.length, people: localPeople() };
   }, [outbreakId, siteId, from, to, limit, offset, sort]);
-  // Online, the server's page names the recorders (other people's names are not on the device).
+  // Online, the server's page names the recorders (other people's names are not on the device);
+  // before the first pull it is also the answer itself.
   const online = useConnectivity((c) => c.online);
-  const names = useResource<{ people?: Record<string, string> }>(
+  const pulled = usePulled();
+  const api = useResource<{ rows: TallyRecord[]; total: number; people?: Record<string, string> }>(
     online && outbreakId ? `/api/outbreaks/${outbreakId}/tallies${qs({ site: siteId, from, to, limit, offset, sort })}` : null,
   );
-  useEffect(() => rememberPeople(names.data?.people), [names.data]);
-  const s = state(outbreakId ? data : { rows: [], total: 0, people: {} });
-  const people = useMemo(() => ({ ...(data?.people ?? {}), ...(names.data?.people ?? {}) }), [data, names.data]);
+  useEffect(() => rememberPeople(api.data?.people), [api.data]);
+  const people = useMemo(() => ({ ...(data?.people ?? {}), ...(api.data?.people ?? {}) }), [data, api.data]);
+  if (pulled === false && online && outbreakId) {
+    return { ...api, rows: api.data?.rows ?? [], total: api.data?.total ?? 0, people };
+  }
+  const s = state(outbreakId ? (pulled === undefined ? undefined : data) : { rows: [], total: 0, people: {} });
   return { ...s, rows: data?.rows ?? [], total: data?.total ?? 0, people };
 }
 
@@ -155,8 +161,14 @@ export function useEpiCurve(outbreakId: string | null, siteId?: string | null) {
       startDate: String(outbreak.startDate), today, sitesInView: inView, siteId: siteId ?? null,
     });
   }, [outbreakId, siteId, today]);
-  const s = state<{ curve: EpiCurve } | undefined>(data === undefined ? undefined : data ? { curve: data } : undefined);
-  return { ...s, loading: data === undefined, curve: data ?? undefined };
+  const online = useConnectivity((c) => c.online);
+  const pulled = usePulled();
+  const api = useResource<{ curve: EpiCurve }>(
+    pulled === false && online && outbreakId ? `/api/outbreaks/${outbreakId}/curve${qs({ site: siteId ?? undefined, today })}` : null,
+  );
+  if (pulled === false && online && outbreakId) return { ...api, curve: api.data?.curve };
+  const s = state<{ curve: EpiCurve } | undefined>(data === undefined || pulled === undefined ? undefined : data ? { curve: data } : undefined);
+  return { ...s, loading: data === undefined || pulled === undefined, curve: pulled === undefined ? undefined : (data ?? undefined) };
 }
 
 export interface ReportingGrid {
@@ -184,8 +196,12 @@ export function useReportingGrid(outbreakId: string | null, range: { from?: stri
     }
     return { from, to, sites: sites.map((s) => ({ siteId: s.id, name: s.name, teamId: s.teamId, dates: bySite.get(s.id) ?? {} })) };
   }, [outbreakId, from, to]);
+  const online = useConnectivity((c) => c.online);
+  const pulled = usePulled();
+  const api = useResource<ReportingGrid>(pulled === false && online && outbreakId ? `/api/outbreaks/${outbreakId}/tallies/grid${qs({ from: range.from, to: range.to })}` : null);
+  if (pulled === false && online && outbreakId) return { ...api, grid: api.data };
   const s = state(data === null ? undefined : data);
-  return { ...s, loading: data === undefined, grid: data ?? undefined };
+  return { ...s, loading: data === undefined || pulled === undefined, grid: pulled === undefined ? undefined : (data ?? undefined) };
 }
 
 function invalid(fields: Record<string, string>, message = 'Some fields are not valid.'): ApiError {
@@ -204,7 +220,13 @@ export async function saveTally(input: TallyInput): Promise<SaveResult> {
   if (!parsed.success) throw invalid(fieldsFromIssues(parsed.error.issues));
   const v = parsed.data;
   const db = localDb();
-  const site = await db.sites.get(v.siteId);
+  let site = await db.sites.get(v.siteId);
+  // Right after the first sign-in the screen may show the API's sites before the first pull has
+  // stored them: let that sync finish once, then look again.
+  if (!site && navigator.onLine) {
+    await requestSync();
+    site = await db.sites.get(v.siteId);
+  }
   if (!site || site.deletedAt) throw new ApiError(404, 'not_found', 'Site was not found on this device.');
   const outbreak = await db.outbreaks.get(String(site.outbreakId));
   if (outbreak && v.date < String(outbreak.startDate)) throw invalid({ date: `Before the outbreak's day 0 (${String(outbreak.startDate)}).` }, "The date is before the outbreak's day 0.");

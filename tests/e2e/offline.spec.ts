@@ -122,7 +122,7 @@ test.describe('offline first', () => {
     await ctxB.setOffline(true);
     for (const [p, n] of [[a, '21'], [b, '8']] as const) {
       await p.goto(`/entry?outbreak=${DEMO_OUTBREAK}`);
-      await p.getByLabel('Day').fill(date);
+      await p.getByRole('textbox', { name: 'Day' }).fill(date);
       await record(p, 'Alder Camp', n);
     }
     await ctxA.setOffline(false);
