@@ -82,7 +82,7 @@ function UserMenu() {
         className="flex min-h-touch items-center gap-2 rounded-lg border border-white/40 px-3 text-left text-sm"
       >
         <span className="font-bold">{me.name}</span>
-        <span data-testid="user-role" className="rounded bg-white/20 px-1">{ROLE_LABEL[me.role]}</span>
+        <span data-testid="user-role" className="rounded bg-accent-dark px-1">{ROLE_LABEL[me.role]}</span>
         {fromCache && <span title="Shown from this device while the server is unreachable">(offline)</span>}
       </button>
       {open && (
