@@ -48,7 +48,7 @@ function rtReading(t: Float64Array, Rt: Float64Array, startDate: string | null):
 export function ScenarioScreen() {
   const { outbreaks } = useOutbreaks();
   const outbreakId = useOutbreakId() ?? outbreaks[0]?.id ?? null;
-  const { outbreak } = useOutbreak(outbreakId);
+  const { outbreak, error: outbreakError } = useOutbreak(outbreakId);
   const startDate = outbreak?.startDate ?? null;
   const draft = useScenarioEditor((s) => s.draft);
   const update = useScenarioEditor((s) => s.update);
@@ -84,6 +84,12 @@ export function ScenarioScreen() {
     if (!live.run || !live.summary?.bedDemand || !input?.capacity) return null;
     return { t: live.run.t, series: [{ label: 'beds occupied', values: live.summary.bedDemand }], beds: input.capacity.beds };
   }, [live.run, live.summary, input]);
+
+  // Until the outbreak is known (and a draft of another outbreak has been reset), show nothing to edit:
+  // an edit made before the reset would be thrown away by it.
+  if ((outbreakId && !outbreak && !outbreakError) || (outbreak && editorOutbreak !== outbreak.id)) {
+    return <p>Loading the outbreak…</p>;
+  }
 
   return (
     <div className="flex flex-col gap-4">
