@@ -51,23 +51,28 @@ test.describe('mail: invitations and password reset', () => {
   });
 
   test('"Forgot password?" answers the same for an unknown address, and a known one gets a working link', async ({ page, browser }) => {
+    // An account of this test's own, so no other spec's demo sign-in is changed.
+    const admin = await browser.newContext();
+    const a = await admin.newPage();
+    await signIn(a, 'admin@marrowbend.example');
+    const made = await a.request.post('/api/users', {
+      data: { email: 'reset.me@marrowbend.example', name: 'Rey Setter', role: 'supervisor', password: 'the-old-long-password', outbreakIds: ['00000000-0000-4000-8000-00000000a001'] },
+    });
+    expect(made.status()).toBe(200);
     await page.goto('/signin');
     await page.getByRole('link', { name: 'Forgot password?' }).click();
     await page.getByLabel('E-mail').fill('nobody-here@marrowbend.example');
     await page.getByRole('button', { name: 'Send me a reset link' }).click();
     const unknownAnswer = await page.getByTestId('forgot-done').textContent();
     await page.goto('/forgot');
-    await page.getByLabel('E-mail').fill('supervisor@marrowbend.example');
+    await page.getByLabel('E-mail').fill('reset.me@marrowbend.example');
     await page.getByRole('button', { name: 'Send me a reset link' }).click();
     await expect(page.getByTestId('forgot-done')).toHaveText(unknownAnswer ?? '');
 
-    const admin = await browser.newContext();
-    const a = await admin.newPage();
-    await signIn(a, 'admin@marrowbend.example');
     // Sent in the background: poll the admin's mail list until it is there.
     let id = '';
     await expect.poll(async () => {
-      const res = await a.request.get('/api/mail?to=supervisor@marrowbend.example');
+      const res = await a.request.get('/api/mail?to=reset.me@marrowbend.example');
       const body = (await res.json()) as { messages: Array<{ id: string; subject: string }> };
       id = body.messages.find((m) => m.subject.includes('reset'))?.id ?? '';
       return id;
@@ -84,7 +89,7 @@ test.describe('mail: invitations and password reset', () => {
     await page.getByLabel('New password again').fill('a-fresh-supervisor-pass');
     await page.getByRole('button', { name: 'Set the new password' }).click();
     await expect(page.getByTestId('password-set')).toBeVisible();
-    await signIn(page, 'supervisor@marrowbend.example', 'a-fresh-supervisor-pass');
+    await signIn(page, 'reset.me@marrowbend.example', 'a-fresh-supervisor-pass');
     await expect(page.getByTestId('user-role')).toHaveText('Supervisor');
   });
 });
