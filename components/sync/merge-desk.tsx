@@ -75,8 +75,9 @@ function ConflictCard({ c, onDone }: { c: ConflictView; onDone: (msg: string) =>
   };
   const settled = c.status === 'settled';
   return (
+    <div data-testid="conflict-card" data-conflict-id={c.id}>
     <Card title={<span>{c.siteName ?? 'Unknown site'} · {c.date ?? '—'}</span>} className="flex flex-col gap-3">
-      <div data-testid="conflict-card" data-conflict-id={c.id} className="flex flex-col gap-3">
+      <div className="flex flex-col gap-3">
         <p className="text-ink/80">{REASON[c.reason] ?? c.reason}. Raised {when(c.createdAt)}.</p>
         <div className="grid gap-3 md:grid-cols-2">
           <section className="rounded-lg border-2 border-line p-3" aria-label="On the server now">
@@ -131,6 +132,7 @@ function ConflictCard({ c, onDone }: { c: ConflictView; onDone: (msg: string) =>
         )}
       </div>
     </Card>
+    </div>
   );
 }
 
