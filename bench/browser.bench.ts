@@ -101,7 +101,8 @@ export default async function bench(): Promise<BenchRow[]> {
     const gaps: number[] = [];
     const walls: number[] = [];
     let counted = 0;
-    for (let rep = 0; rep < 3; rep++) {
+    const starts: number[][] = [];
+    for (let rep = 0; rep < 4; rep++) {
       // A string, not a function: tsx wraps named inner functions in a helper the page does not have.
       const t0 = await page.evaluate<number>(`(() => {
         window.__gap = 0;
@@ -125,8 +126,12 @@ export default async function bench(): Promise<BenchRow[]> {
         const w = window as unknown as { __long: { start: number; duration: number }[]; __gap: number; __tick: boolean };
         w.__tick = false;
         const mine = w.__long.filter((e) => e.start >= start);
-        return { longest: mine.reduce((m, e) => Math.max(m, e.duration), 0), count: mine.length, gap: w.__gap, wall: performance.now() - start };
+        return {
+          longest: mine.reduce((m, e) => Math.max(m, e.duration), 0), count: mine.length, gap: w.__gap, wall: performance.now() - start,
+          at: mine.map((e) => Math.round(e.start - start)),
+        };
       }, t0);
+      starts.push(r.at);
       longest.push(r.longest);
       gaps.push(r.gap);
       walls.push(r.wall);
@@ -135,10 +140,13 @@ export default async function bench(): Promise<BenchRow[]> {
     }
     const max = (xs: number[]) => Math.max(...xs);
     const med = (xs: number[]) => xs.slice().sort((a, b) => a - b)[xs.length >> 1]!;
-    rows.push({ name: `${NAME} (Long Tasks API, worst of 3)`, value: max(longest), unit: 'ms', target: '≤ 50 ms' });
-    rows.push({ name: 'browser: long tasks over 50 ms during those 3 ensembles', value: counted, unit: 'tasks' });
-    rows.push({ name: 'browser: largest gap between 4 ms main-thread timer ticks (worst of 3)', value: max(gaps), unit: 'ms' });
-    rows.push({ name: 'browser: 1,000-run ensemble from click to drawn bands (median of 3)', value: med(walls), unit: 'ms' });
+    process.stderr.write(`browser bench: per run longest ${longest.map((v) => v.toFixed(0)).join(', ')} ms; long tasks at ${JSON.stringify(starts)} ms after the click; walls ${walls.map((v) => v.toFixed(0)).join(', ')} ms\n`);
+    // The first ensemble of a page also starts its worker and creates the band charts; later ones reuse both.
+    rows.push({ name: `${NAME} (Long Tasks API, first run in the page)`, value: longest[0]!, unit: 'ms', target: '≤ 50 ms' });
+    rows.push({ name: `${NAME} (Long Tasks API, worst of runs 2–4)`, value: max(longest.slice(1)), unit: 'ms', target: '≤ 50 ms' });
+    rows.push({ name: 'browser: long tasks over 50 ms during those 4 ensembles', value: counted, unit: 'tasks' });
+    rows.push({ name: 'browser: largest gap between 4 ms main-thread timer ticks (worst of 4)', value: max(gaps), unit: 'ms' });
+    rows.push({ name: 'browser: 1,000-run ensemble from click to drawn bands (median of 4)', value: med(walls), unit: 'ms' });
     return rows;
   } finally {
     await browser.close();
