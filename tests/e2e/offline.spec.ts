@@ -64,6 +64,8 @@ test.describe('offline first', () => {
 
     await page.goto(`/entry?outbreak=${DEMO_OUTBREAK}`);
     await expect(page.getByTestId('online-state')).toHaveText('Offline');
+    // Two days back (other specs record today and yesterday on the same demo server).
+    await page.getByRole('textbox', { name: 'Day' }).fill(day(-2));
     await record(page, 'Alder Camp', '14');
     await record(page, 'Northgate School', '6');
     await record(page, 'Hollin Crossing', '3');
@@ -84,7 +86,7 @@ test.describe('offline first', () => {
     await page.screenshot({ path: '/tmp/offline-forecast.png', fullPage: true });
 
     await page.goto('/sync');
-    await expect(page.getByTestId('outbox-table')).toContainText('Alder Camp');
+    await expect(page.getByTestId('outbox-table')).toContainText(`Alder Camp, ${day(-2)}: 14 new cases`);
     await page.screenshot({ path: '/tmp/offline-sync-page.png', fullPage: true });
 
     // Back online: the sync runs (on reconnect, or by hand) and the outbox empties.
@@ -103,7 +105,7 @@ test.describe('offline first', () => {
     const table = cp.getByTestId('tally-table');
     await expect(table).toBeVisible({ timeout: 30_000 });
     for (const [site, cases] of [['Alder Camp', '14'], ['Northgate School', '6'], ['Hollin Crossing', '3']] as const) {
-      await expect(table.getByRole('row').filter({ hasText: site }).filter({ hasText: day() }).first()).toContainText(cases);
+      await expect(table.getByRole('row').filter({ hasText: site }).filter({ hasText: day(-2) }).first()).toContainText(cases);
     }
     await cp.screenshot({ path: '/tmp/coordinator-sees-tallies.png', fullPage: true });
     await coord.close();
@@ -116,7 +118,7 @@ test.describe('offline first', () => {
     const ctxB = await browser.newContext();
     const a = await fieldDevice(ctxA, 'field@marrowbend.example');
     const b = await fieldDevice(ctxB, 'coordinator@marrowbend.example');
-    const date = day(-1);
+    const date = day(-3);
 
     await ctxA.setOffline(true);
     await ctxB.setOffline(true);
