@@ -61,9 +61,21 @@ export function firstLoadJs(dist = distDir()): { route: string; bytes: number; g
     sandbox.globalThis = sandbox;
     sandbox.self = sandbox;
     vm.runInNewContext(readFileSync(file, 'utf8'), sandbox);
-    const manifests = sandbox.__RSC_MANIFEST as Record<string, { entryJSFiles?: Record<string, string[]> }>;
+    const manifests = sandbox.__RSC_MANIFEST as Record<string, { entryJSFiles?: Record<string, string[]>; clientModules?: Record<string, { chunks: unknown[] }> }>;
     const files = new Set<string>(build.rootMainFiles);
-    for (const m of Object.values(manifests)) for (const list of Object.values(m.entryJSFiles ?? {})) for (const f of list) if (f.endsWith('.js')) files.add(f);
+    const route = routeOf(rel);
+    // A static page: exactly the scripts its HTML loads (polyfills are nomodule: modern browsers skip them).
+    const html = path.join(appDir, `${route === '/' ? 'index' : route.slice(1)}.html`);
+    if (existsSync(html)) {
+      for (const m of readFileSync(html, 'utf8').matchAll(/<script src="\/_next\/([^"]+\.js)"/g)) if (!m[1]!.includes('polyfills')) files.add(m[1]!);
+    } else {
+      // A dynamic page: the chunks of every client module its server tree references (webpack builds
+      // list them in clientModules; Turbopack builds in entryJSFiles).
+      for (const m of Object.values(manifests)) {
+        for (const list of Object.values(m.entryJSFiles ?? {})) for (const f of list) if (f.endsWith('.js')) files.add(f);
+        for (const mod of Object.values(m.clientModules ?? {})) for (const c of mod.chunks) if (typeof c === 'string' && c.endsWith('.js')) files.add(c);
+      }
+    }
     let bytes = 0;
     let gzip = 0;
     for (const f of files) {
@@ -71,7 +83,7 @@ export function firstLoadJs(dist = distDir()): { route: string; bytes: number; g
       bytes += s.raw;
       gzip += s.gzip;
     }
-    out.push({ route: routeOf(rel) === '/' ? '/' : routeOf(rel), bytes, gzip, files: files.size });
+    out.push({ route, bytes, gzip, files: files.size });
   }
   return out.sort((a, b) => a.route.localeCompare(b.route));
 }

@@ -2,7 +2,7 @@
 import Link from 'next/link';
 import { useEffect, useState } from 'react';
 import { useConnectivity } from '@/lib/stores/connectivity';
-import { startSyncClient } from '@/lib/offline/sync-client';
+import { loadSync } from '@/lib/offline/lazy';
 import { useSyncStatus } from '@/lib/offline/sync-status';
 
 export function ago(iso: string | null, now = Date.now()): string {
@@ -23,7 +23,7 @@ export function StatusIndicator() {
   const needsSignIn = useSyncStatus((s) => s.needsSignIn);
   const [, tick] = useState(0);
   useEffect(() => {
-    startSyncClient();
+    void loadSync().then((m) => m.startSyncClient());
     const t = setInterval(() => tick((n) => n + 1), 30_000);
     return () => clearInterval(t);
   }, []);

@@ -6,8 +6,7 @@ import { Card } from '@/components/ui/card';
 import { Notice } from '@/components/ui/notice';
 import { ago } from '@/components/shell/status-indicator';
 import { useConnectivity } from '@/lib/stores/connectivity';
-import { localDb } from '@/lib/offline/db';
-import { syncNow } from '@/lib/offline/sync-client';
+import { loadSync } from '@/lib/offline/lazy';
 import { useSyncStatus } from '@/lib/offline/sync-status';
 import { useLive } from '@/lib/offline/use-live';
 import type { OutboxEntry } from '@/lib/sync/engine';
@@ -52,10 +51,10 @@ export function SyncScreen() {
   const { online, outboxSize, lastSyncAt, syncing, lastError } = useConnectivity();
   const status = useSyncStatus();
   const [busy, setBusy] = useState(false);
-  const outbox = useLive(() => localDb().outbox.orderBy('seq').limit(200).toArray(), []) ?? [];
-  const results = useLive(() => localDb().results.orderBy('at').reverse().limit(50).toArray(), []) ?? [];
-  const rejected = useLive(() => localDb().rejected.orderBy('at').reverse().limit(50).toArray(), []) ?? [];
-  const siteRows = useLive(() => localDb().sites.toArray(), []) ?? [];
+  const outbox = useLive((db) => db.outbox.orderBy('seq').limit(200).toArray(), []) ?? [];
+  const results = useLive((db) => db.results.orderBy('at').reverse().limit(50).toArray(), []) ?? [];
+  const rejected = useLive((db) => db.rejected.orderBy('at').reverse().limit(50).toArray(), []) ?? [];
+  const siteRows = useLive((db) => db.sites.toArray(), []) ?? [];
   const sites = new Map(siteRows.map((s) => [s.id, String(s.name)]));
   const payloadOf = new Map<string, OutboxEntry['payload']>(outbox.map((o) => [o.mutationId, o.payload]));
   const report = status.lastReport;
@@ -63,7 +62,7 @@ export function SyncScreen() {
   const onSync = async () => {
     setBusy(true);
     try {
-      await syncNow();
+      await (await loadSync()).syncNow();
     } finally {
       setBusy(false);
     }

@@ -7,8 +7,7 @@
 import { useEffect } from 'react';
 import type { OutbreakRecord, SiteRecord, TeamRecord } from '@/lib/types/records';
 import type { LocalRecord } from '@/lib/sync/engine';
-import { localDb } from '@/lib/offline/db';
-import { cacheServerRecords, requestSync } from '@/lib/offline/sync-client';
+import { loadSync } from '@/lib/offline/lazy';
 import { useLive } from '@/lib/offline/use-live';
 import { usePulled } from '@/lib/offline/use-pulled';
 import { useResource, type Resource } from './use-resource';
@@ -30,7 +29,7 @@ function useLocalFirst<T, R extends { id: string }>(
   const fallback = pulled === false && (!local || local.length === 0) ? url : null;
   const api = useResource<T>(fallback);
   useEffect(() => {
-    if (api.data) void cacheServerRecords(entity, pick(api.data) as unknown as LocalRecord[]).catch(() => undefined);
+    if (api.data) void loadSync().then((m) => m.cacheServerRecords(entity, pick(api.data!) as unknown as LocalRecord[])).catch(() => undefined);
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [api.data]);
   const rows = local && local.length ? local : api.data ? pick(api.data) : (local ?? []);
@@ -40,7 +39,7 @@ function useLocalFirst<T, R extends { id: string }>(
     loading: local === undefined || (Boolean(fallback) && api.loading && !rows.length),
     reload: () => {
       api.reload();
-      void requestSync();
+      void loadSync().then((m) => m.requestSync());
     },
     rows,
   };
@@ -49,15 +48,15 @@ function useLocalFirst<T, R extends { id: string }>(
 const byName = (a: { name: string }, b: { name: string }) => a.name.localeCompare(b.name);
 
 export function useOutbreaks() {
-  const local = useLive(async () => ((await localDb().outbreaks.toArray()).filter(live) as unknown as OutbreakRecord[]).sort((a, b) => b.startDate.localeCompare(a.startDate)), []);
+  const local = useLive(async (db) => ((await db.outbreaks.toArray()).filter(live) as unknown as OutbreakRecord[]).sort((a, b) => b.startDate.localeCompare(a.startDate)), []);
   const r = useLocalFirst<{ outbreaks: OutbreakRecord[] }, OutbreakRecord>(local, '/api/outbreaks', (d) => d.outbreaks, 'outbreak');
   return { ...r, outbreaks: r.rows };
 }
 
 export function useOutbreak(id: string | null) {
-  const local = useLive(async () => {
+  const local = useLive(async (db) => {
     if (!id) return [];
-    const o = await localDb().outbreaks.get(id);
+    const o = await db.outbreaks.get(id);
     return o && live(o) ? [o as unknown as OutbreakRecord] : [];
   }, [id]);
   const r = useLocalFirst<{ outbreak: OutbreakRecord }, OutbreakRecord>(local, id ? `/api/outbreaks/${id}` : null, (d) => [d.outbreak], 'outbreak');
@@ -65,18 +64,18 @@ export function useOutbreak(id: string | null) {
 }
 
 export function useSites(outbreakId: string | null) {
-  const local = useLive(async () => {
+  const local = useLive(async (db) => {
     if (!outbreakId) return [];
-    return ((await localDb().sites.where('outbreakId').equals(outbreakId).toArray()).filter(live) as unknown as SiteRecord[]).sort(byName);
+    return ((await db.sites.where('outbreakId').equals(outbreakId).toArray()).filter(live) as unknown as SiteRecord[]).sort(byName);
   }, [outbreakId]);
   const r = useLocalFirst<{ sites: SiteRecord[] }, SiteRecord>(local, outbreakId ? `/api/outbreaks/${outbreakId}/sites` : null, (d) => d.sites, 'site');
   return { ...r, sites: r.rows };
 }
 
 export function useTeams(outbreakId: string | null) {
-  const local = useLive(async () => {
+  const local = useLive(async (db) => {
     if (!outbreakId) return [];
-    return ((await localDb().teams.where('outbreakId').equals(outbreakId).toArray()).filter(live) as unknown as TeamRecord[]).sort(byName);
+    return ((await db.teams.where('outbreakId').equals(outbreakId).toArray()).filter(live) as unknown as TeamRecord[]).sort(byName);
   }, [outbreakId]);
   const r = useLocalFirst<{ teams: TeamRecord[] }, TeamRecord>(local, outbreakId ? `/api/outbreaks/${outbreakId}/teams` : null, (d) => d.teams, 'team');
   return { ...r, teams: r.rows };

@@ -16,8 +16,7 @@ import type { ScenarioRecord } from '@/lib/types/records';
 import { scenarioRecordInputSchema, type ScenarioRecordInput } from '@/lib/validation/scenario-record';
 import { fieldsFromIssues } from '@/lib/http/errors';
 import type { LocalRecord } from '@/lib/sync/engine';
-import { localDb } from '@/lib/offline/db';
-import { cacheServerRecords, deleteLocal, requestSync, saveLocal } from '@/lib/offline/sync-client';
+import { loadDb, loadSync } from '@/lib/offline/lazy';
 import { useLive } from '@/lib/offline/use-live';
 import { apiFetch, ApiError } from './api';
 
@@ -27,9 +26,9 @@ export type ScenarioDraft = Omit<ScenarioRecordInput, 'baseVersion'>;
 const asRecord = (r: LocalRecord): ScenarioRecord => ({ ...(r as unknown as ScenarioRecord), version: Math.max(1, Number(r.version)) });
 
 export function useScenarios(outbreakId: string | null) {
-  const data = useLive(async () => {
+  const data = useLive(async (db) => {
     if (!outbreakId) return [] as ScenarioRecord[];
-    const rows = (await localDb().scenarios.where('outbreakId').equals(outbreakId).toArray()).filter((r) => !r.deletedAt).map(asRecord);
+    const rows = (await db.scenarios.where('outbreakId').equals(outbreakId).toArray()).filter((r) => !r.deletedAt).map(asRecord);
     // The official forecast first, then the newest.
     return rows.sort((a, b) => Number(b.official) - Number(a.official) || String(b.updatedAt).localeCompare(String(a.updatedAt)));
   }, [outbreakId]);
@@ -37,7 +36,7 @@ export function useScenarios(outbreakId: string | null) {
     data: data === undefined ? undefined : { scenarios: data },
     error: null as Error | null,
     loading: data === undefined,
-    reload: () => void requestSync(),
+    reload: () => void loadSync().then((m) => m.requestSync()),
     scenarios: data ?? [],
   };
 }
@@ -56,7 +55,7 @@ export async function saveScenario(outbreakId: string, draft: ScenarioDraft, _ba
   const parsed = scenarioRecordInputSchema.safeParse(draft);
   if (!parsed.success) throw new ApiError(400, 'validation_failed', 'Some fields are not valid.', fieldsFromIssues(parsed.error.issues));
   const v = parsed.data;
-  const db = localDb();
+  const db = await loadDb();
   const existing = v.id ? await db.scenarios.get(v.id) : undefined;
   if (existing?.deletedAt) throw new ApiError(409, 'conflict', 'This scenario was deleted.');
   if (existing && existing.outbreakId !== outbreakId) throw new ApiError(409, 'conflict', 'This scenario id belongs to another outbreak.');
@@ -78,14 +77,14 @@ export async function saveScenario(outbreakId: string, draft: ScenarioDraft, _ba
     updatedBy: myId(),
     deviceId: null,
   };
-  await saveLocal('scenario', record, { outbreakId, name: v.name, input: v.input, notes: v.notes ?? null, ...(v.official !== undefined ? { official: v.official } : {}) });
+  await (await loadSync()).saveLocal('scenario', record, { outbreakId, name: v.name, input: v.input, notes: v.notes ?? null, ...(v.official !== undefined ? { official: v.official } : {}) });
   return asRecord((await db.scenarios.get(record.id)) ?? record);
 }
 
 export async function removeScenario(s: Pick<ScenarioRecord, 'id' | 'version'>): Promise<void> {
-  const existing = await localDb().scenarios.get(s.id);
+  const existing = await (await loadDb()).scenarios.get(s.id);
   if (!existing || existing.deletedAt) return;
-  await deleteLocal('scenario', existing);
+  await (await loadSync()).deleteLocal('scenario', existing);
 }
 
 /**
@@ -94,11 +93,13 @@ export async function removeScenario(s: Pick<ScenarioRecord, 'id' | 'version'>):
  * changes are synced first so that the server publishes what the coordinator sees.
  */
 export async function publishScenario(id: string, official: boolean): Promise<ScenarioRecord> {
-  const pending = async () => (await localDb().outbox.where('entityId').equals(id).count()) > 0;
-  for (let i = 0; i < 3 && (await pending()); i++) await requestSync();
+  const db = await loadDb();
+  const sync = await loadSync();
+  const pending = async () => (await db.outbox.where('entityId').equals(id).count()) > 0;
+  for (let i = 0; i < 3 && (await pending()); i++) await sync.requestSync();
   if (await pending()) throw new ApiError(0, 'offline', 'Publishing needs the server: the scenario has not synced yet. Try again when online.');
   const { scenario } = await apiFetch<{ scenario: ScenarioRecord }>(`/api/scenarios/${id}/official`, { method: 'POST', json: { official } });
-  await cacheServerRecords('scenario', [scenario as unknown as LocalRecord]);
-  void requestSync();
+  await sync.cacheServerRecords('scenario', [scenario as unknown as LocalRecord]);
+  void sync.requestSync();
   return scenario;
 }

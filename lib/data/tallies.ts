@@ -14,8 +14,8 @@ import { addDays, dayRange, localToday } from '@/lib/tallies/dates';
 import { tallyInputSchema, type TallyInput } from '@/lib/validation/tally';
 import { normaliseValues, sameValues } from '@/lib/sync/tally-rules';
 import type { LocalRecord } from '@/lib/sync/engine';
-import { localDb } from '@/lib/offline/db';
-import { deleteLocal, requestSync, saveLocal } from '@/lib/offline/sync-client';
+import { loadDb, loadSync } from '@/lib/offline/lazy';
+import type { EbbcastDb } from '@/lib/offline/db';
 import { useLive } from '@/lib/offline/use-live';
 import { usePulled } from '@/lib/offline/use-pulled';
 import { apiFetch, ApiError } from './api';
@@ -62,11 +62,10 @@ interface LocalState<T> {
 }
 
 function state<T>(data: T | undefined): LocalState<T> {
-  return { data, error: null, loading: data === undefined, reload: () => void requestSync() };
+  return { data, error: null, loading: data === undefined, reload: () => void loadSync().then((m) => m.requestSync()) };
 }
 
-async function outbreakTallies(outbreakId: string, siteId?: string | null): Promise<LocalRecord[]> {
-  const db = localDb();
+async function outbreakTallies(db: EbbcastDb, outbreakId: string, siteId?: string | null): Promise<LocalRecord[]> {
   const rows = siteId ? await db.tallies.where('siteId').equals(siteId).toArray() : await db.tallies.where('outbreakId').equals(outbreakId).toArray();
   return rows.filter((r) => live(r) && r.outbreakId === outbreakId);
 }
@@ -120,11 +119,10 @@ const myId = (): string | null => {
 
 export function useTallies(outbreakId: string | null, filter: TallyFilter = {}) {
   const { siteId, from, to, limit = 100, offset = 0, sort = '-date' } = filter;
-  const data = useLive(async () => {
+  const data = useLive(async (db) => {
     if (!outbreakId) return { rows: [] as TallyRecord[], total: 0, people: {} as Record<string, string> };
-    const db = localDb();
     const sites = new Map((await db.sites.where('outbreakId').equals(outbreakId).toArray()).map((s) => [s.id, String(s.name)]));
-    const rows = (await outbreakTallies(outbreakId, siteId))
+    const rows = (await outbreakTallies(db, outbreakId, siteId))
       .filter((r) => (!from || String(r.date) >= from) && (!to || String(r.date) <= to))
       .map(asRecord)
       .sort(compare(sort, (id) => sites.get(id) ?? ''));
@@ -149,13 +147,12 @@ export function useTallies(outbreakId: string | null, filter: TallyFilter = {}) 
 
 export function useEpiCurve(outbreakId: string | null, siteId?: string | null) {
   const today = localToday();
-  const data = useLive(async () => {
+  const data = useLive(async (db) => {
     if (!outbreakId) return null;
-    const db = localDb();
     const outbreak = await db.outbreaks.get(outbreakId);
     if (!outbreak || outbreak.deletedAt) return null;
     const sites = (await db.sites.where('outbreakId').equals(outbreakId).toArray()).filter(live);
-    const tallies = await outbreakTallies(outbreakId, siteId);
+    const tallies = await outbreakTallies(db, outbreakId, siteId);
     const inView = siteId ? 1 : sites.length;
     return computeEpiCurve(tallies.map((t) => ({ date: String(t.date), newCases: Number(t.newCases) })), {
       startDate: String(outbreak.startDate), today, sitesInView: inView, siteId: siteId ?? null,
@@ -180,14 +177,13 @@ export interface ReportingGrid {
 export function useReportingGrid(outbreakId: string | null, range: { from?: string; to?: string } = {}) {
   const to = range.to ?? localToday();
   const from = range.from ?? addDays(to, -27);
-  const data = useLive(async (): Promise<ReportingGrid | null> => {
+  const data = useLive(async (db): Promise<ReportingGrid | null> => {
     if (!outbreakId) return null;
-    const db = localDb();
     const sites = (await db.sites.where('outbreakId').equals(outbreakId).toArray()).filter(live) as unknown as SiteRecord[];
     sites.sort((a, b) => a.name.localeCompare(b.name));
     const days = new Set(dayRange(from <= to ? from : to, to));
     const bySite = new Map<string, Record<string, number>>();
-    for (const t of await outbreakTallies(outbreakId)) {
+    for (const t of await outbreakTallies(db, outbreakId)) {
       const d = String(t.date);
       if (!days.has(d)) continue;
       const m = bySite.get(String(t.siteId)) ?? {};
@@ -219,12 +215,12 @@ export async function saveTally(input: TallyInput): Promise<SaveResult> {
   const parsed = tallyInputSchema.safeParse(rest);
   if (!parsed.success) throw invalid(fieldsFromIssues(parsed.error.issues));
   const v = parsed.data;
-  const db = localDb();
+  const db = await loadDb();
   let site = await db.sites.get(v.siteId);
   // Right after the first sign-in the screen may show the API's sites before the first pull has
   // stored them: let that sync finish once, then look again.
   if (!site && navigator.onLine) {
-    await requestSync();
+    await (await loadSync()).requestSync();
     site = await db.sites.get(v.siteId);
   }
   if (!site || site.deletedAt) throw new ApiError(404, 'not_found', 'Site was not found on this device.');
@@ -258,17 +254,17 @@ export async function saveTally(input: TallyInput): Promise<SaveResult> {
     recordedBy: (existing?.recordedBy as string | null | undefined) ?? me,
     recordedAt: (existing?.recordedAt as string | null | undefined) ?? now,
   };
-  await saveLocal('tally', record, { siteId: v.siteId, date: v.date, ...values });
+  await (await loadSync()).saveLocal('tally', record, { siteId: v.siteId, date: v.date, ...values });
   return { status: 'applied', tally: asRecord((await db.tallies.get(record.id)) ?? record) };
 }
 
 /** Deletes a tally on this device (a tombstone until the server answers) and queues the delete. */
 export async function removeTally(id: string, _baseVersion: number): Promise<SaveResult> {
-  const db = localDb();
+  const db = await loadDb();
   const existing = await db.tallies.get(id);
   if (!existing) throw new ApiError(404, 'not_found', 'Tally was not found on this device.');
   if (existing.deletedAt) return { status: 'unchanged', tally: asRecord(existing) };
-  await deleteLocal('tally', existing);
+  await (await loadSync()).deleteLocal('tally', existing);
   return { status: 'applied', tally: asRecord((await db.tallies.get(id)) ?? existing) };
 }
 
@@ -284,7 +280,7 @@ export async function importTalliesFile(outbreakId: string, file: Blob, opts: { 
   const { report } = await apiFetch<{ report: ImportReport }>(`/api/outbreaks/${outbreakId}/tallies/import${q}`, {
     method: 'POST', body: file, headers: { 'content-type': 'text/csv' },
   });
-  if (opts.commit) void requestSync();
+  if (opts.commit) void loadSync().then((m) => m.requestSync());
   return report;
 }
 

@@ -1,5 +1,4 @@
 'use client';
-import { localDb } from './db';
 import { useLive } from './use-live';
 
 /**
@@ -8,5 +7,5 @@ import { useLive } from './use-live';
  * `undefined` while the database is being read.
  */
 export function usePulled(): boolean | undefined {
-  return useLive(async () => Number((await localDb().meta.get('cursor'))?.value ?? 0) > 0, []);
+  return useLive(async (db) => Number((await db.meta.get('cursor'))?.value ?? 0) > 0, []);
 }
