@@ -15,7 +15,10 @@ export default defineConfig({
   fullyParallel: false,
   workers: 1,
   retries: 0,
-  reporter: [['list']],
+  // npm test adds a JSON report for its closing count (scripts/test.mjs).
+  reporter: process.env.PLAYWRIGHT_JSON_REPORT
+    ? [['list'], ['json', { outputFile: process.env.PLAYWRIGHT_JSON_REPORT }]]
+    : [['list']],
   outputDir: 'test-results',
   use: {
     baseURL,
