@@ -77,7 +77,7 @@ export function InviteForm({ teams, outbreaks, roles, pending: initialPending }:
               <div className="flex flex-wrap gap-3">
                 {teams.map((t) => (
                   <label key={t.id} className="flex min-h-touch items-center gap-2">
-                    <input type="checkbox" name="teamIds" value={t.id} className="h-5 w-5" /> {t.name} <span className="text-ink/60">({t.outbreakName})</span>
+                    <input type="checkbox" name="teamIds" value={t.id} className="h-5 w-5" /> {t.name} <span className="text-ink/70">({t.outbreakName})</span>
                   </label>
                 ))}
               </div>

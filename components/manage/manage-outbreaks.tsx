@@ -66,7 +66,7 @@ function OutbreakBlock({ detail, onChange }: { detail: Detail; onChange: (d: Det
         <div>
           <h3 className="font-bold">Sites</h3>
           <ul className="mb-2 list-disc pl-5">
-            {sites.map((s) => <li key={s.id}>{s.name} <span className="text-ink/60">({s.kind}, <span className="num">{s.population.toLocaleString()}</span>; {teams.find((t) => t.id === s.teamId)?.name ?? 'no team'})</span></li>)}
+            {sites.map((s) => <li key={s.id}>{s.name} <span className="text-ink/70">({s.kind}, <span className="num">{s.population.toLocaleString()}</span>; {teams.find((t) => t.id === s.teamId)?.name ?? 'no team'})</span></li>)}
           </ul>
           <form className="flex flex-col gap-2" noValidate onSubmit={async (e: FormEvent<HTMLFormElement>) => {
             e.preventDefault();

@@ -21,7 +21,7 @@ export function ReportingGrid({ grid }: { grid: Grid }) {
               <th scope="col" className="sticky left-0 bg-panel px-2 text-left">Site</th>
               {days.map((d) => (
                 <th key={d} scope="col" className="num px-0.5 text-center font-normal" title={d}>
-                  <span className="block text-xs text-ink/60">{d.slice(5, 7)}</span>{d.slice(8)}
+                  <span className="block text-xs text-ink/70">{d.slice(5, 7)}</span>{d.slice(8)}
                 </th>
               ))}
             </tr>

@@ -105,37 +105,14 @@ async function tabThrough(page: Page, bound: number): Promise<Stop[]> {
 
 const report: string[] = [];
 
-/**
- * Violations found in components this suite may not edit, reported to their owners (issue 8 report):
- * grey hint text (`text-ink/60`) on white is below 4.5:1. Listed by screen, rule and selector so that
- * any other violation still fails.
- */
-const KNOWN: Record<string, Array<{ rule: string; selector: string; file: string }>> = {
-  '/manage': [{ rule: 'color-contrast', selector: '.text-ink\\/60', file: 'components/manage/manage-outbreaks.tsx (site kind and population)' }],
-  '/admin': [{ rule: 'color-contrast', selector: '.text-ink\\/60', file: 'components/admin/users-admin.tsx (outbreak name beside a team)' }],
-};
-
-/**
- * Screens with a native date input: the keyboard check finds no focus indicator on the input when
- * Tab lands in one of its parts (Chromium, measured in the last run of this session). Marked as
- * expected failures so the suite stays honest: they still run every assertion, and the day a fix
- * makes them pass, test.fail turns that into a failure to remove this list. Known open item (issue 8).
- */
-const DATE_INPUT_SCREENS = ['/entry', '/tallies', '/manage', '/sheets', '/ledger'];
-
 test.describe('accessibility of the main screens at 1024×768', () => {
   for (const screen of SCREENS) {
     test(`${screen.path} (${screen.as ?? 'signed out'})`, async ({ page }) => {
-      test.fail(DATE_INPUT_SCREENS.includes(screen.path.split('?')[0]!), 'date inputs show no focus indicator to the keyboard check');
       await page.setViewportSize({ width: 1024, height: 768 });
       await open(page, screen);
       const results = await new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']).analyze();
       const serious = results.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
-      const isKnown = (v: (typeof serious)[number]) =>
-        (KNOWN[screen.path] ?? []).some((k) => k.rule === v.id && v.nodes.every((n) => n.target.join(' ').includes(k.selector)));
-      const known = serious.filter(isKnown).map((v) => `${v.id} in ${(KNOWN[screen.path] ?? []).find((k) => k.rule === v.id)!.file}`);
-      const bad = serious.filter((v) => !isKnown(v));
-      const lines = bad.map((v) => `${v.id} (${v.impact}): ${v.nodes.slice(0, 3).map((n) => n.target.join(' ')).join(' | ')}`);
+      const lines = serious.map((v) => `${v.id} (${v.impact}): ${v.nodes.slice(0, 3).map((n) => n.target.join(' ')).join(' | ')}`);
       const want = await tabbables(page);
       const stops = await tabThrough(page, want.length * 2 + 10);
       const reached = new Set(stops.map((s) => s.id).filter(Boolean));
@@ -147,7 +124,7 @@ test.describe('accessibility of the main screens at 1024×768', () => {
       const noRing = stops.filter((s) => !s.indicator).map((s) => s.desc);
       // Each press moves focus: no stop repeats the one before it.
       const stuck = stops.filter((s, i) => i > 0 && !s.segmented && s.id === stops[i - 1]!.id && s.desc === stops[i - 1]!.desc).map((s) => s.desc);
-      report.push(`${screen.path} as ${screen.as ?? 'signed out'}: axe ${results.violations.length} violations (${bad.length} serious/critical), ${results.passes.length} rules passed; ${want.length} controls, ${stops.length} tab stops, ${unreached.length} unreached, ${noRing.length} without a focus indicator${noRing.length ? ` (${noRing.join(', ')})` : ''}${known.length ? `; known, reported: ${known.join('; ')}` : ''}`);
+      report.push(`${screen.path} as ${screen.as ?? 'signed out'}: axe ${results.violations.length} violations (${serious.length} serious/critical), ${results.passes.length} rules passed; ${want.length} controls, ${stops.length} tab stops, ${unreached.length} unreached, ${noRing.length} without a focus indicator${noRing.length ? ` (${noRing.join(', ')})` : ''}`);
       console.log(report.at(-1));
       expect(results.passes.length, 'axe ran its rules').toBeGreaterThan(10);
       expect(lines, `serious/critical axe violations on ${screen.path}`).toEqual([]);
