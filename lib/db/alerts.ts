@@ -3,9 +3,15 @@
  * beds within 14 days, its coordinators get one e-mail per forecast version, naming the day and
  * the range. The unique key (scenario id, version) in capacity_alerts makes "never twice" a
  * database guarantee, even when two checks run at once.
+ *
+ * A scenario's record version goes up on every save (a rename, an unchanged re-save, a withdraw and
+ * a re-publish), so the version alone would alert again for a forecast the coordinators already
+ * know. Each alert therefore also keeps a fingerprint of what the forecast is computed from, and a
+ * version whose fingerprint was already alerted for the same scenario counts as already sent.
  */
-import { randomUUID } from 'node:crypto';
-import { CapacityAlert, Outbreak } from '@/models';
+import { createHash, randomUUID } from 'node:crypto';
+import type { Transaction } from 'sequelize';
+import { CapacityAlert, Outbreak, Scenario } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize } from '@/lib/auth/permissions';
 import { AppError, notFound } from '@/lib/http/errors';
@@ -28,6 +34,45 @@ export type CapacityCheck =
 
 function isUniqueViolation(err: unknown): boolean {
   return (err as { name?: string })?.name === 'SequelizeUniqueConstraintError';
+}
+
+/** JSON with sorted keys: the same forecast saved by another client (other key order) hashes the same. */
+function canonical(v: unknown): string {
+  if (Array.isArray(v)) return `[${v.map(canonical).join(',')}]`;
+  if (v !== null && typeof v === 'object') {
+    const o = v as Record<string, unknown>;
+    return `{${Object.keys(o).sort().map((k) => `${JSON.stringify(k)}:${canonical(o[k])}`).join(',')}}`;
+  }
+  return JSON.stringify(v) ?? 'null';
+}
+
+const parseJson = (s: string | null): unknown => {
+  if (s == null) return null;
+  try {
+    return JSON.parse(s);
+  } catch {
+    return null;
+  }
+};
+
+/**
+ * What the alert is computed from: the scenario input, the fit intervals that draw the band
+ * (notes.fit) and the beds. Null when the stored row is no longer the version that was checked
+ * (saved again meanwhile): then only the version key applies, as before fingerprints.
+ */
+async function forecastFingerprint(scenarioId: string, version: number, beds: number): Promise<string | null> {
+  const row = await Scenario.findByPk(scenarioId, { attributes: ['version', 'input', 'notes'] });
+  if (!row || Number(row.version) !== version) return null;
+  const notes = parseJson(row.notes) as { fit?: { R0Range?: unknown; infectiousPeriodRange?: unknown } } | null;
+  const fit = notes?.fit ?? null;
+  const basis = { input: parseJson(row.input), R0Range: fit?.R0Range ?? null, infectiousPeriodRange: fit?.infectiousPeriodRange ?? null, beds };
+  return createHash('sha256').update(canonical(basis)).digest('hex');
+}
+
+/** An alert (sent or being sent) for the same scenario and the same forecast, whatever its version. */
+async function alertedSameForecast(scenarioId: string, fingerprint: string, t: Transaction): Promise<CapacityAlert | null> {
+  const rows = await CapacityAlert.findAll({ where: { scenarioId }, transaction: t });
+  return rows.find((r) => (parseJson(r.detail) as { fingerprint?: unknown } | null)?.fingerprint === fingerprint) ?? null;
 }
 
 /**
@@ -61,23 +106,32 @@ export async function checkCapacityAlert(outbreakId: string, opts: { now?: Date 
   if (existing) return { status: 'already_sent', ...ids, day: existing.firstDay };
   const coordinators = await listOutbreakMembers(outbreakId, 'coordinator');
   if (!coordinators.length) return { status: 'no_coordinators', ...ids };
+  const fingerprint = await forecastFingerprint(ids.scenarioId, ids.version, f.beds);
 
-  // Claim the alert first: the unique key lets exactly one concurrent check through.
+  // Claim the alert first: the unique key lets exactly one concurrent check of a version through;
+  // the fingerprint look-up sits in the same write transaction (serialised on SQLite) for other versions.
   const alertId = randomUUID();
+  let alreadyDay: string | null;
   try {
-    await writeTx(async (t) => {
+    alreadyDay = await writeTx(async (t): Promise<string | null> => {
+      if (fingerprint) {
+        const same = await alertedSameForecast(ids.scenarioId, fingerprint, t);
+        if (same) return same.firstDay;
+      }
       await CapacityAlert.create(
         {
           id: alertId, outbreakId, scenarioId: ids.scenarioId, scenarioVersion: ids.version, firstDay: day, recipients: 0,
-          detail: JSON.stringify({ earliest, latest, beds: f.beds, peak, peakRange, checkedOn: today, status: 'sending' }),
+          detail: JSON.stringify({ earliest, latest, beds: f.beds, peak, peakRange, checkedOn: today, status: 'sending', fingerprint }),
         },
         { transaction: t },
       );
+      return null;
     });
   } catch (err) {
     if (isUniqueViolation(err)) return { status: 'already_sent', ...ids, day };
     throw err;
   }
+  if (alreadyDay !== null) return { status: 'already_sent', ...ids, day: alreadyDay };
 
   const link = appUrl(`/sitrep?outbreak=${encodeURIComponent(outbreakId)}`);
   const sent: string[] = [];
@@ -100,7 +154,7 @@ export async function checkCapacityAlert(outbreakId: string, opts: { now?: Date 
   }
   await writeTx(async (t) => {
     await CapacityAlert.update(
-      { recipients: sent.length, detail: JSON.stringify({ earliest, latest, beds: f.beds, peak, peakRange, checkedOn: today, status: 'sent', to: sent }) },
+      { recipients: sent.length, detail: JSON.stringify({ earliest, latest, beds: f.beds, peak, peakRange, checkedOn: today, status: 'sent', to: sent, fingerprint }) },
       { where: { id: alertId }, transaction: t },
     );
     await appendLedger(t, {

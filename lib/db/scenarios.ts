@@ -14,6 +14,8 @@ import { authorize } from '@/lib/auth/permissions';
 import { conflict, notFound } from '@/lib/http/errors';
 import type { ScenarioRecord } from '@/lib/types/records';
 import type { ScenarioRecordInput } from '@/lib/validation/scenario-record';
+import { sendInBackground } from '@/lib/mail/transport';
+import { checkCapacityAlert } from './alerts';
 import { db, writeTx } from './connection';
 import { nextChangeSeq } from './counters';
 import { appendLedger } from './ledger';
@@ -48,6 +50,30 @@ export const toScenarioRecord = (s: Scenario): ScenarioRecord => ({
 
 /** Runs fn in the caller's transaction, or in a write transaction of its own. Never nests writeTx. */
 const inTx = <T>(t: Transaction | undefined, fn: (t: Transaction) => Promise<T>): Promise<T> => (t ? fn(t) : writeTx(fn));
+
+/**
+ * Runs the capacity alert (lib/db/alerts.ts) for the outbreak once the write is committed: never
+ * inside it, since a mail send would hold the one SQLite write lock, and the check reads only
+ * committed rows. In the caller's transaction (the sync push) it waits for that transaction's
+ * outermost commit; the hook runs while the lock is still held, so it only starts the check.
+ * The check runs in the background (tests wait with settleMail()); its failure (mail down) is
+ * logged and never fails or undoes the write. A forecast already alerted is not alerted again
+ * (alerts.ts); Sequelize runs afterCommit hooks even after a failed commit, which is harmless here.
+ */
+function alertAfterCommit(outbreakId: string, t: Transaction | undefined): void {
+  const start = () =>
+    sendInBackground(() =>
+      checkCapacityAlert(outbreakId).catch((err: unknown) => {
+        console.error(`capacity alert for outbreak ${outbreakId} failed after publishing:`, err instanceof Error ? err.message : err);
+      }),
+    );
+  if (!t) return start();
+  // A savepoint's afterCommit fires when the savepoint is released, before the batch commits.
+  type Nested = Transaction & { parent?: Transaction };
+  let root = t as Nested;
+  while (root.parent) root = root.parent as Nested;
+  root.afterCommit(start);
+}
 
 /** Live scenarios of an outbreak, the official one first, then the newest. */
 export async function listScenarios(actor: Actor, outbreakId: string): Promise<ScenarioRecord[]> {
@@ -142,6 +168,8 @@ export async function upsertScenario(
     }
     return row;
   });
+  // An edit of the official forecast (or a new one published) may cross the beds.
+  if (saved.official) alertAfterCommit(saved.outbreakId, t);
   return toScenarioRecord(saved);
 }
 
@@ -188,5 +216,7 @@ export async function setOfficial(
     });
     return updated;
   });
+  // Also when it was official already: the check is idempotent and retries an alert that failed.
+  if (row.official) alertAfterCommit(row.outbreakId, t);
   return toScenarioRecord(row);
 }
