@@ -1,6 +1,7 @@
 // `npm test`: types, then unit and integration tests (vitest), then end-to-end (Playwright).
 // Each runner also writes a JSON report; the last line adds them up as
-// "tests: N passed, N failed, N skipped", the plain closing line CI reads.
+// "N passed, N failed, N skipped", alone on its line: the plain closing line CI reads (vitest's and
+// Playwright's own summaries are not among the formats it knows).
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -34,7 +35,7 @@ function count(name) {
 
 const total = { passed: 0, failed: 0, skipped: 0 };
 function summary() {
-  console.log(`tests: ${total.passed} passed, ${total.failed} failed, ${total.skipped} skipped`);
+  console.log(`${total.passed} passed, ${total.failed} failed, ${total.skipped} skipped`);
 }
 
 for (const [name, args, env, reportName] of steps) {
