@@ -1,7 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import bcrypt from 'bcryptjs';
-import { Op } from 'sequelize';
-import { User, TeamMembership, OutbreakMember, Team } from '@/models';
+import { Op, QueryTypes } from 'sequelize';
+import { User, TeamMembership, OutbreakMember } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import type { UserRecord } from '@/lib/types/records';
 import type { UserCreateInput, UserUpdateInput } from '@/lib/validation/user';
@@ -15,16 +15,19 @@ let dummyHash: string | undefined;
 
 export const hashPassword = (plain: string) => bcrypt.hash(plain, BCRYPT_ROUNDS);
 
+/**
+ * Teams and outbreaks in a user's scope: teams through live memberships, outbreaks directly
+ * (coordinators, supervisors) or through those teams. Plain queries: this runs on every request.
+ */
 async function scopeOf(userId: string, role: string): Promise<{ teamIds: string[]; outbreakIds: string[] }> {
-  const memberships = await TeamMembership.findAll({ where: { userId }, include: [{ model: Team, attributes: ['outbreakId', 'deletedAt'] }] });
-  const live = memberships.filter((m) => {
-    const team = (m as unknown as { Team?: Team }).Team;
-    return team && !team.deletedAt;
-  });
-  const teamIds = live.map((m) => m.teamId);
-  const viaTeams = live.map((m) => (m as unknown as { Team: Team }).Team.outbreakId);
-  const direct = role === 'field' ? [] : (await OutbreakMember.findAll({ where: { userId } })).map((m) => m.outbreakId);
-  return { teamIds, outbreakIds: [...new Set([...direct, ...viaTeams])] };
+  const sequelize = await db();
+  const select = { type: QueryTypes.SELECT, replacements: { userId } } as const;
+  const [teams, direct] = await Promise.all([
+    sequelize.query<{ team_id: string; outbreak_id: string }>(
+      'SELECT m.team_id, t.outbreak_id FROM team_memberships m JOIN teams t ON t.id = m.team_id WHERE m.user_id = :userId AND t.deleted_at IS NULL', select),
+    role === 'field' ? [] : sequelize.query<{ outbreak_id: string }>('SELECT outbreak_id FROM outbreak_members WHERE user_id = :userId', select),
+  ]);
+  return { teamIds: teams.map((m) => m.team_id), outbreakIds: [...new Set([...direct.map((m) => m.outbreak_id), ...teams.map((m) => m.outbreak_id)])] };
 }
 
 /** Checks a password; null for an unknown address, a wrong password or a deactivated account. */
@@ -42,9 +45,10 @@ export async function verifyCredentials(email: string, password: string): Promis
  * deactivated, or their session version moved on (role, teams or activity changed).
  */
 export async function loadActor(userId: string, sessionVersion: number): Promise<Actor | null> {
-  await db();
-  const user = await User.findByPk(userId);
-  if (!user || !user.active || user.sessionVersion !== sessionVersion) return null;
+  const sequelize = await db();
+  const [user] = await sequelize.query<{ id: string; email: string; name: string; role: Actor['role']; active: boolean | number; session_version: number | string }>(
+    'SELECT id, email, name, role, active, session_version FROM users WHERE id = :userId', { type: QueryTypes.SELECT, replacements: { userId } });
+  if (!user || !user.active || Number(user.session_version) !== sessionVersion) return null;
   const scope = await scopeOf(user.id, user.role);
   return { id: user.id, email: user.email, name: user.name, role: user.role, ...scope };
 }
