@@ -16,8 +16,28 @@ interface DbState {
   sequelize: Sequelize;
   dialect: 'sqlite' | 'postgres';
   ready: Promise<void>;
-  /** Tail of the in-process write queue (SQLite only). */
+  /** Settles when the write queue is empty (SQLite only; closeDb waits for it). */
   lockTail: Promise<unknown>;
+  /** Writes waiting for the lock (SQLite only). */
+  queue: WriteJob[];
+  draining: boolean;
+  stats: WriteStats;
+}
+
+/** Counts of the SQLite write queue since the connection opened (tests and benchmarks read them). */
+export interface WriteStats {
+  /** writeTx calls that ended (committed or refused). */
+  writes: number;
+  /** Transactions committed or rolled back: fewer than `writes` when group commit joined some. */
+  transactions: number;
+  /** Groups rolled back whole by an unexpected error and run again one write at a time. */
+  regrouped: number;
+}
+
+interface WriteJob {
+  fn: (t: Transaction) => Promise<unknown>;
+  resolve: (value: unknown) => void;
+  reject: (error: unknown) => void;
 }
 
 const g = globalThis as unknown as { __ebbcastDb?: DbState };
@@ -48,6 +68,9 @@ function open(): DbState {
     dialect: file ? 'sqlite' : 'postgres',
     ready: Promise.resolve(),
     lockTail: Promise.resolve(),
+    queue: [],
+    draining: false,
+    stats: { writes: 0, transactions: 0, regrouped: 0 },
   };
   initModels(sequelize);
   initialisedFor = sequelize;
@@ -57,22 +80,47 @@ function open(): DbState {
 
 const PRAGMAS = 'PRAGMA journal_mode=WAL; PRAGMA synchronous=FULL; PRAGMA foreign_keys=ON; PRAGMA busy_timeout=8000;';
 
+/** The key of the one connection every write transaction runs on (SQLite). */
+const WRITER = 'writer';
+
 /**
- * Sequelize opens one sqlite3 connection per transaction and runs no connect hooks for SQLite, so
- * the settings a connection needs (WAL, full fsync, foreign keys, busy timeout) are applied here,
- * once per new connection, before its first query.
+ * Sequelize opens a new sqlite3 connection for every transaction, and closes it after; it runs no
+ * connect hooks for SQLite. Writes are serialised here (writeTx), so every transaction runs on one
+ * kept writer connection instead (opening a connection, its pragmas and the schema parse cost
+ * more than a small push). The settings a connection needs (WAL, full fsync, foreign keys, busy
+ * timeout) are applied once per new connection, before its first query.
  */
 function configureSqliteConnections(sequelize: Sequelize) {
-  const cm = sequelize.connectionManager as unknown as { getConnection: (o?: unknown) => Promise<sqlite3.Database> };
+  type Cm = {
+    getConnection: (o?: { uuid?: string }) => Promise<sqlite3.Database>;
+    releaseConnection: (c: sqlite3.Database, force?: boolean) => void;
+    destroyConnection: (c: sqlite3.Database) => Promise<void>;
+    connections: Record<string, sqlite3.Database>;
+  };
+  const cm = sequelize.connectionManager as unknown as Cm;
   const original = cm.getConnection.bind(cm);
+  const release = cm.releaseConnection.bind(cm);
   const configured = new WeakSet<sqlite3.Database>();
-  cm.getConnection = async (options?: unknown) => {
-    const conn = await original(options);
+  cm.getConnection = async (options) => {
+    const transaction = Boolean(options?.uuid && options.uuid !== 'default');
+    const conn = await original(transaction ? { ...options, uuid: WRITER } : options);
     if (!configured.has(conn)) {
       configured.add(conn);
       await new Promise<void>((resolve, reject) => conn.exec(PRAGMAS, (err) => (err ? reject(err) : resolve())));
     }
     return conn;
+  };
+  // The writer stays open when its transaction ends; closeDb() closes it with the others.
+  cm.releaseConnection = (conn, force) => {
+    if (conn !== cm.connections[WRITER]) release(conn, force);
+  };
+  // After a failed COMMIT or ROLLBACK Sequelize destroys the connection ("undetermined state"):
+  // close the writer, which rolls back whatever it still holds, so the next write opens a fresh one.
+  const destroy = cm.destroyConnection.bind(cm);
+  cm.destroyConnection = async (conn) => {
+    if (conn !== cm.connections[WRITER]) return destroy(conn);
+    delete cm.connections[WRITER];
+    await new Promise<void>((resolve) => conn.close(() => resolve()));
   };
 }
 
@@ -100,6 +148,11 @@ export async function db(): Promise<Sequelize> {
   return s.sequelize;
 }
 
+/** A copy of the write-queue counts (SQLite; zeros on PostgreSQL, which has no queue). */
+export function writeStats(): WriteStats {
+  return { ...state().stats };
+}
+
 export function dialect(): 'sqlite' | 'postgres' {
   return state().dialect;
 }
@@ -109,15 +162,95 @@ export function dialect(): 'sqlite' | 'postgres' {
  * the transaction is IMMEDIATE: concurrent DEFERRED transactions through Sequelize + sqlite3 fail
  * with SQLITE_BUSY (SYNC.md, measured). On PostgreSQL the database's own transactions suffice.
  * A multi-process SQLite deployment is not supported: the lock is per process (see DEVELOPERS.md).
+ *
+ * Group commit (SQLite): the writes that queued while one transaction ran go together into the
+ * next transaction, each in a savepoint of its own, and share its one commit (one fsync of the
+ * WAL instead of one each, with `synchronous=FULL`). Each write is still all or nothing: a write
+ * that throws an expected refusal (isRefusal) is rolled back to its savepoint and only its
+ * caller sees the error; no caller is answered before the commit. Any other error (a storage
+ * fault, a bug) rolls back the whole group, and its writes run again one transaction each, as
+ * if they had never been grouped, so one bad write cannot take the others' commit with it.
  */
 export async function writeTx<T>(fn: (t: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await db();
   const s = state();
   if (s.dialect !== 'sqlite') return sequelize.transaction(fn);
-  const run = () => sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, fn);
-  const result = s.lockTail.then(run, run);
-  s.lockTail = result.catch(() => undefined);
-  return result;
+  return new Promise<T>((resolve, reject) => {
+    s.queue.push({ fn: fn as (t: Transaction) => Promise<unknown>, resolve: resolve as (v: unknown) => void, reject });
+    if (!s.draining) s.lockTail = drain(s);
+  });
+}
+
+/**
+ * An expected refusal of one write: an AppError below 500, bad input found by the numerical core,
+ * or a unique or foreign-key violation (one statement refused; SQLite keeps the transaction, and
+ * callers such as the capacity alert use a unique key as a claim). The write is rolled back to its
+ * savepoint and the group goes on. Checked by name, since Next may bundle more than one copy of
+ * the error classes.
+ */
+const REFUSALS = new Set(['ModelError', 'SequelizeUniqueConstraintError', 'SequelizeForeignKeyConstraintError']);
+function isRefusal(err: unknown): boolean {
+  const e = err as { name?: unknown; status?: unknown } | null;
+  if (!e) return false;
+  if (e.name === 'AppError') return typeof e.status === 'number' && e.status < 500;
+  return typeof e.name === 'string' && REFUSALS.has(e.name);
+}
+
+/** Most writes one commit carries; more wait for the next one. */
+const MAX_GROUP = 64;
+
+async function drain(s: DbState) {
+  s.draining = true;
+  try {
+    while (s.queue.length) {
+      const group = s.queue.splice(0, MAX_GROUP);
+      await (group.length === 1 ? alone(s, group[0]!) : together(s, group));
+    }
+  } finally {
+    s.draining = false;
+  }
+}
+
+const immediate = (s: DbState, fn: (t: Transaction) => Promise<unknown>) =>
+  s.sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, fn);
+
+async function alone(s: DbState, job: WriteJob) {
+  s.stats.transactions++;
+  s.stats.writes++;
+  try {
+    job.resolve(await immediate(s, job.fn));
+  } catch (err) {
+    job.reject(err);
+  }
+}
+
+async function together(s: DbState, group: WriteJob[]) {
+  const outcomes: Array<{ ok: true; value: unknown } | { ok: false; error: unknown }> = [];
+  try {
+    await immediate(s, async (t) => {
+      for (const job of group) {
+        try {
+          outcomes.push({ ok: true, value: await s.sequelize.transaction({ transaction: t }, job.fn) });
+        } catch (error) {
+          if (!isRefusal(error)) throw error;
+          outcomes.push({ ok: false, error });
+        }
+      }
+    });
+  } catch {
+    // Nothing of the group was kept: each write gets a transaction of its own, one after another.
+    s.stats.transactions++;
+    s.stats.regrouped++;
+    for (const job of group) await alone(s, job);
+    return;
+  }
+  s.stats.transactions++;
+  s.stats.writes += group.length;
+  group.forEach((job, i) => {
+    const o = outcomes[i]!;
+    if (o.ok) job.resolve(o.value);
+    else job.reject(o.error);
+  });
 }
 
 /** Closes the connection (tests, scripts). The next `db()` opens a new one. */

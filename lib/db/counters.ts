@@ -1,5 +1,6 @@
-import type { Transaction } from 'sequelize';
+import { QueryTypes, type Transaction } from 'sequelize';
 import { ServerCounter } from '@/models';
+import { db } from './connection';
 
 /**
  * The next value of the server change counter (SYNC.md principle 4). Call inside a write
@@ -12,10 +13,14 @@ export async function nextChangeSeq(t: Transaction): Promise<number> {
 
 /** Reserves `n` consecutive counter values (bulk writes such as an import); returns the first. */
 export async function reserveChangeSeqs(t: Transaction, n: number): Promise<number> {
-  const [row] = await ServerCounter.findOrCreate({ where: { name: 'change' }, defaults: { name: 'change', value: 0 }, transaction: t });
-  await row.increment('value', { by: n, transaction: t });
-  await row.reload({ transaction: t });
-  return Number(row.value) - n + 1;
+  // One statement (UPDATE … RETURNING, SQLite 3.35+ and PostgreSQL): every write of a sync push
+  // takes a value, so the round trips count; the row is made on the very first change.
+  const sequelize = await db();
+  const [row] = await sequelize.query<{ value: number | string }>(
+    "UPDATE server_counters SET value = value + :n WHERE name = 'change' RETURNING value", { type: QueryTypes.SELECT, replacements: { n }, transaction: t });
+  if (row) return Number(row.value) - n + 1;
+  await ServerCounter.create({ name: 'change', value: n }, { transaction: t });
+  return 1;
 }
 
 /** The highest change counter handed out so far (0 on an empty database). */

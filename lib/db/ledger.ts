@@ -3,7 +3,7 @@ import { Op, type Transaction, type WhereOptions } from 'sequelize';
 import { Device, LedgerEntry, User } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize } from '@/lib/auth/permissions';
-import { db, writeTx } from './connection';
+import { db, dialect, writeTx } from './connection';
 
 export interface LedgerInput {
   kind: string;
@@ -58,8 +58,7 @@ function toRow(e: LedgerEntry): LedgerRow {
  * the action it records was committed). The chain hash covers the previous row's hash.
  */
 export async function appendLedger(t: Transaction, input: LedgerInput): Promise<LedgerRow> {
-  const last = await LedgerEntry.findOne({ order: [['id', 'DESC']], transaction: t, attributes: ['hash'] });
-  const prevHash = last?.hash ?? GENESIS;
+  const prevHash = knownLastHash(t) ?? (await LedgerEntry.findOne({ order: [['id', 'DESC']], transaction: t, attributes: ['hash'] }))?.hash ?? GENESIS;
   const body = {
     at: new Date().toISOString(),
     kind: input.kind,
@@ -82,7 +81,32 @@ export async function appendLedger(t: Transaction, input: LedgerInput): Promise<
     },
     { transaction: t },
   );
+  if (dialect() === 'sqlite') rememberLastHash(t, hash);
   return toRow(e);
+}
+
+/**
+ * The hash of the last ledger row written in a transaction, so that the writes of one commit
+ * (a sync push, or a group of them: connection.ts writeTx) read it from the table once. Kept per
+ * transaction and savepoint: a savepoint's value reaches its parent when the savepoint commits,
+ * and dies with it when it rolls back, as its rows do. SQLite only, where the write lock makes
+ * this transaction the only writer; PostgreSQL reads the table every time.
+ */
+const lastHashes = new WeakMap<Transaction, string>();
+type Nested = Transaction & { parent?: Transaction };
+
+function knownLastHash(t: Transaction): string | undefined {
+  for (let x: Nested | undefined = t; x; x = x.parent) {
+    const h = lastHashes.get(x);
+    if (h) return h;
+  }
+  return undefined;
+}
+
+function rememberLastHash(t: Transaction, hash: string): void {
+  lastHashes.set(t, hash);
+  const parent = (t as Nested).parent;
+  if (parent) t.afterCommit(() => rememberLastHash(parent, hash));
 }
 
 /** Appends a ledger row in a transaction of its own (sign-ins, mail). */

@@ -4,7 +4,7 @@
  * lib/db/scenarios.ts) with the batch's transaction passed in, so the rules live in one place.
  */
 import { Op, QueryTypes, type Transaction, type WhereOptions } from 'sequelize';
-import { AppliedMutation, Device, Outbreak, Scenario, ServerCounter, Site, Tally, Team } from '@/models';
+import { AppliedMutation, Device, Outbreak, Scenario, Site, Tally, Team } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import { authorize, may } from '@/lib/auth/permissions';
 import { AppError, forbidden } from '@/lib/http/errors';
@@ -18,7 +18,7 @@ import { db, writeTx } from './connection';
 import { appendLedger } from './ledger';
 import { toOutbreakRecord, toSiteRecord, toTeamRecord } from './outbreaks';
 import { deleteTally, latestAcceptedDay, toTallyRecord, upsertTally } from './tallies';
-import { nextChangeSeq } from './counters';
+import { reserveChangeSeqs } from './counters';
 import { normaliseValues } from '@/lib/sync/tally-rules';
 import type { TallyInput } from '@/lib/validation/tally';
 import { deleteScenario, toScenarioRecord, upsertScenario } from './scenarios';
@@ -75,14 +75,14 @@ export async function pushMutations(actor: Actor, body: PushBody): Promise<PushR
   await db();
   const started = performance.now();
   return writeTx(async (t) => {
-    const device = await Device.findByPk(body.deviceId, { transaction: t });
+    // Both reads at once: they queue on the one connection, so their round trips overlap.
+    const [device, prior] = await Promise.all([
+      Device.findByPk(body.deviceId, { transaction: t }),
+      body.mutations.length ? AppliedMutation.findAll({ where: { mutationId: { [Op.in]: body.mutations.map((m) => m.mutationId) } }, transaction: t }) : [],
+    ]);
     if (!device) throw new AppError('not_found', 'This device is not registered yet; register it, then push again.', { detail: { reason: 'device_unknown' } });
     if (device.userId !== actor.id) throw forbidden('this device (it is registered to another user)');
-    const known = new Map<string, AppliedMutation>();
-    if (body.mutations.length) {
-      const rows = await AppliedMutation.findAll({ where: { mutationId: { [Op.in]: body.mutations.map((m) => m.mutationId) } }, transaction: t });
-      for (const r of rows) known.set(r.mutationId, r);
-    }
+    const known = new Map<string, AppliedMutation>(prior.map((r) => [r.mutationId, r]));
     let highest = Number(device.highestSeq);
     const counts: Counts = { applied: 0, duplicate: 0, conflict: 0, rejected: 0, resent: 0 };
     const results: (PushResult | null)[] = [];
@@ -210,8 +210,7 @@ async function applyPlainInserts(actor: Actor, deviceId: string, muts: Mutation[
       && p.date <= latest && p.date >= String(outbreak.startDate);
   });
   if (!plain.length) return out;
-  const first = await nextChangeSeq(t);
-  if (plain.length > 1) await ServerCounter.increment('value', { by: plain.length - 1, where: { name: 'change' }, transaction: t });
+  const first = await reserveChangeSeqs(t, plain.length);
   const now = new Date();
   const rows = plain.map((m, i) => {
     const p = parsed.get(m.mutationId)!;
