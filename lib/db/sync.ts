@@ -137,20 +137,26 @@ export async function pushMutations(actor: Actor, body: PushBody): Promise<PushR
       };
     });
     const qi = (await db()).getQueryInterface();
-    for (let i = 0; i < rows.length; i += 500) await qi.bulkInsert('applied_mutations', rows.slice(i, i + 500).map(snakeRow), { transaction: t });
     let k = 0;
     for (let i = 0; i < results.length; i++) if (results[i] === null) results[i] = answers.get(fresh[k++]!.mutationId)!.result;
-    await device.update({ highestSeq: highest, lastSeenAt: new Date() }, { transaction: t });
     const only = outbreakIds.size === 1 ? [...outbreakIds][0]! : null;
-    await appendLedger(t, {
-      kind: 'push', userId: actor.id, deviceId: device.id, outbreakId: only,
-      counts: { mutations: body.mutations.length, ...counts },
-      durationMs: performance.now() - started,
-      detail: {
-        firstSeq: body.mutations[0]?.seq ?? null, lastSeq: body.mutations.at(-1)?.seq ?? null,
-        ...(outbreakIds.size > 1 ? { outbreakIds: [...outbreakIds] } : {}),
-      },
-    });
+    // The batch's three closing writes are independent: issued together, they queue on the one
+    // connection in this order and their round trips overlap (the duration is taken before them).
+    await Promise.all([
+      (async () => {
+        for (let i = 0; i < rows.length; i += 500) await qi.bulkInsert('applied_mutations', rows.slice(i, i + 500).map(snakeRow), { transaction: t });
+      })(),
+      device.update({ highestSeq: highest, lastSeenAt: new Date() }, { transaction: t }),
+      appendLedger(t, {
+        kind: 'push', userId: actor.id, deviceId: device.id, outbreakId: only,
+        counts: { mutations: body.mutations.length, ...counts },
+        durationMs: performance.now() - started,
+        detail: {
+          firstSeq: body.mutations[0]?.seq ?? null, lastSeq: body.mutations.at(-1)?.seq ?? null,
+          ...(outbreakIds.size > 1 ? { outbreakIds: [...outbreakIds] } : {}),
+        },
+      }),
+    ]);
     return { results: results as PushResult[], highestSeq: highest };
   });
 }

@@ -106,7 +106,8 @@ export async function upsertTally(actor: Actor, rawInput: TallyInput, ctx: Upser
   if (!parsed.success) throw validationError(parsed.error.issues);
   const input = parsed.data;
   return inTx(t, async (tx) => {
-    const site = await loadSite(input.siteId, tx);
+    // The site and the tally by id at once (their round trips overlap on the one connection).
+    const [site, byId] = await Promise.all([loadSite(input.siteId, tx), input.id ? Tally.findByPk(input.id, { transaction: tx }) : null]);
     if (ctx.outbreakId && site.outbreakId !== ctx.outbreakId) throw notFound('Site');
     authorize(actor, 'tally:write', { outbreakId: site.outbreakId, teamId: site.teamId });
     const outbreak = await Outbreak.findByPk(site.outbreakId, { transaction: tx });
@@ -117,7 +118,6 @@ export async function upsertTally(actor: Actor, rawInput: TallyInput, ctx: Upser
     }
     const values = normaliseValues(input);
     const baseVersion = input.baseVersion ?? null;
-    const byId = input.id ? await Tally.findByPk(input.id, { transaction: tx }) : null;
     if (byId && !byId.deletedAt && (byId.siteId !== input.siteId || byId.date !== input.date)) {
       throw new AppError('validation_failed', 'The site and day of a tally cannot change; delete it and record a new one.', { fields: { date: 'Cannot change on an existing tally.' } });
     }
