@@ -6,9 +6,13 @@
  *   npx tsx bench/load.ts                       full form: 50 connections × 30 s each, 10-minute soak
  *   npx tsx bench/load.ts --seconds 5 --connections 10 --soak 20     (the CI form, bench/load.bench.ts)
  *
+ * 0. The floor, in the same run: /api/health (no session, one SELECT 1) and /api/me (the session
+ *    check alone) under N connections: what `next start` itself costs here.
  * 1. An authenticated read (GET /api/outbreaks/<demo>/tallies?limit=200) under N connections.
  * 2. The sync push under N connections: one device per connection, each push one tally edit with
- *    the next seq (a device edits its own tally on a site of its own).
+ *    the next seq (a device edits its own tally on a site of its own). With a sweep (the full form;
+ *    `--no-sweep` skips it), both again at 5…40 connections for 10 s each: the most connections
+ *    served within p99 ≤ 200 ms.
  * 3. Soak: 3 simulated devices, each pushing one mutation and pulling every second; the server's
  *    resident memory (its process tree) and the SQLite WAL file are sampled every 5 s.
  */
@@ -26,6 +30,9 @@ export interface LoadOptions {
   seconds: number;
   connections: number;
   soakSeconds: number;
+  /** Connection counts to try after the main runs, each for `sweepSeconds` (default 10). */
+  sweep?: number[];
+  sweepSeconds?: number;
   port?: number;
   log?: (line: string) => void;
 }
@@ -68,13 +75,14 @@ async function benchDevice(url: string, cookie: string, n: number) {
 
 type Dev = Awaited<ReturnType<typeof benchDevice>>;
 
+/** The device's next push: seq is the last one the server accepted plus one (`d.seq` counts accepted ones). */
 function pushBody(d: Dev): string {
-  d.seq++;
+  const seq = d.seq + 1;
   return JSON.stringify({
     deviceId: d.deviceId,
     mutations: [{
-      mutationId: randomUUID(), seq: d.seq, entity: 'tally', entityId: d.entityId, op: 'upsert', baseVersion: null,
-      payload: { siteId: d.siteId, date: today(), newCases: d.seq % 1000, note: `bench ${d.seq}` }, recordedAt: new Date().toISOString(),
+      mutationId: randomUUID(), seq, entity: 'tally', entityId: d.entityId, op: 'upsert', baseVersion: null,
+      payload: { siteId: d.siteId, date: today(), newCases: seq % 1000, note: `bench ${seq}` }, recordedAt: new Date().toISOString(),
     }],
   });
 }
@@ -98,33 +106,72 @@ export async function runLoad(opts: LoadOptions): Promise<BenchRow[]> {
     const cookie = await signIn(server.url, 'coordinator@marrowbend.example');
     const full = opts.seconds >= 30 && opts.connections >= 50;
     const tag = `load ${opts.connections}c×${opts.seconds}s`;
+    const say = (what: string, r: AcResult, extra = '') =>
+      log(`${what}: ${r.requests.average.toFixed(0)} req/s, p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms, errors ${r.errors}, non-2xx ${r.non2xx}${extra}`);
+    const read = (connections: number, duration: number) =>
+      autocannon({ url: `${server.url}/api/outbreaks/${O}/tallies?limit=200`, connections, duration, headers: { cookie } });
 
-    // 1. An authenticated read.
-    const read = await autocannon({
-      url: `${server.url}/api/outbreaks/${O}/tallies?limit=200`, connections: opts.connections, duration: opts.seconds, headers: { cookie },
-    });
-    log(`${tag} read: ${read.requests.average.toFixed(0)} req/s, p50 ${read.latency.p50} ms, p99 ${read.latency.p99} ms, errors ${read.errors}, non-2xx ${read.non2xx}`);
-    out.push(...rows(`${tag} read tallies`, read, full));
-
-    // 2. The sync push: one device per connection, seqs in order per connection.
+    // The devices of the push runs: one per connection, seqs in order per device.
     const devices: Dev[] = [];
-    for (let i = 0; i < opts.connections; i++) devices.push(await benchDevice(server.url, cookie, i));
-    let next = 0;
+    for (let i = 0; i < Math.max(opts.connections, ...(opts.sweep ?? [])); i++) devices.push(await benchDevice(server.url, cookie, i));
     const pushErrors: string[] = [];
-    const push = await autocannon({
-      url: `${server.url}/api/sync/push`, method: 'POST', connections: opts.connections, duration: opts.seconds,
-      headers: { cookie, 'content-type': 'application/json' },
-      setupClient: (client: AcClient) => {
-        const d = devices[next++ % devices.length]!;
-        client.setBody(pushBody(d));
-        client.on('response', (status: number) => {
-          if (status !== 200 && pushErrors.length < 5) pushErrors.push(`status ${status} at seq ${d.seq}`);
+    const push = async (connections: number, duration: number) => {
+      // A run that stops mid-request may leave a push applied whose answer never came back:
+      // take each device's last accepted seq from the server before every run.
+      const listed = (await json(`${server.url}/api/devices`, cookie, 'GET')) as { devices: { id: string; highestSeq: number }[] };
+      const highest = new Map(listed.devices.map((d) => [d.id, d.highestSeq]));
+      for (const d of devices) d.seq = highest.get(d.deviceId) ?? d.seq;
+      let next = 0;
+      return autocannon({
+        url: `${server.url}/api/sync/push`, method: 'POST', connections, duration,
+        headers: { cookie, 'content-type': 'application/json' },
+        setupClient: (client: AcClient) => {
+          const d = devices[next++ % connections]!;
           client.setBody(pushBody(d));
-        });
-      },
-    });
-    log(`${tag} push: ${push.requests.average.toFixed(0)} req/s, p50 ${push.latency.p50} ms, p99 ${push.latency.p99} ms, errors ${push.errors}, non-2xx ${push.non2xx} ${pushErrors.join('; ')}`);
-    out.push(...rows(`${tag} sync push`, push, full));
+          client.on('response', (status: number) => {
+            if (status === 200) d.seq++;
+            else if (pushErrors.length < 5) pushErrors.push(`status ${status} at seq ${d.seq + 1}`);
+            client.setBody(pushBody(d));
+          });
+        },
+      });
+    };
+
+    // 0. The floor: what `next start` itself costs on this machine, in the same run. /api/health is
+    // a route with no session and one `SELECT 1`; /api/me adds the session check (JWT, actor re-read).
+    const health = await autocannon({ url: `${server.url}/api/health`, connections: opts.connections, duration: opts.seconds });
+    say(`${tag} floor /api/health`, health);
+    out.push(...rows(`${tag} floor /api/health`, health, false));
+    const me = await autocannon({ url: `${server.url}/api/me`, connections: opts.connections, duration: opts.seconds, headers: { cookie } });
+    say(`${tag} floor /api/me`, me);
+    out.push(...rows(`${tag} floor /api/me`, me, false));
+
+    // How many connections a route still serves within p99 ≤ 200 ms (capacity planning): the
+    // same route again at each count of the sweep, 10 s each.
+    const sweep = async (what: string, run: (c: number, d: number) => Promise<AcResult>) => {
+      if (!opts.sweep?.length) return;
+      let best = 0;
+      for (const c of opts.sweep) {
+        const x = await run(c, opts.sweepSeconds ?? 10);
+        say(`sweep ${what} ${c}c`, x);
+        out.push({ name: `sweep ${what} ${c}c p99`, value: x.latency.p99, unit: 'ms' });
+        if (x.latency.p99 <= 200 && x.errors + x.timeouts + x.non2xx === 0) best = Math.max(best, c);
+      }
+      out.push({ name: `${what}: most connections with p99 ≤ 200 ms`, value: best, unit: 'conns' });
+    };
+
+    // 1. An authenticated read: a page of up to 200 tallies of the demo outbreak (before the
+    // pushes, which add a tally per bench device to the same outbreak).
+    const r = await read(opts.connections, opts.seconds);
+    say(`${tag} read`, r);
+    out.push(...rows(`${tag} read tallies`, r, full));
+    await sweep('read tallies', read);
+
+    // 2. The sync push: each request one tally edit of the connection's own device.
+    const p = await push(opts.connections, opts.seconds);
+    say(`${tag} push`, p, pushErrors.length ? ` ${pushErrors.join('; ')}` : '');
+    out.push(...rows(`${tag} sync push`, p, full));
+    await sweep('sync push', push);
 
     // 3. Soak: 3 devices syncing every second.
     const soak = await runSoak(server, cookie, opts.soakSeconds, log);
@@ -162,6 +209,7 @@ async function runSoak(server: Server, cookie: string, seconds: number, log: (l:
         const pushed = await fetch(`${server.url}/api/sync/push`, { method: 'POST', headers: { cookie, 'content-type': 'application/json' }, body: pushBody(d) });
         if (!pushed.ok) throw new Error(String(pushed.status));
         await pushed.arrayBuffer();
+        d.seq++;
         for (let more = true; more; ) {
           const page = await fetch(`${server.url}/api/sync/pull?cursor=${cursors[i]}&limit=500`, { headers: { cookie, 'x-device-id': d.deviceId } });
           if (!page.ok) throw new Error(String(page.status));
@@ -185,15 +233,21 @@ async function runSoak(server: Server, cookie: string, seconds: number, log: (l:
   const last = samples.at(-1)!;
   const base = baseline ?? samples[0]!;
   const growth = ((last.rss - base.rss) / base.rss) * 100;
+  // Right after the load runs the server still holds their garbage, so the end is also compared
+  // with the lowest RSS of the soak's first half (after the warm-up): a leak shows against that.
+  const firstHalf = samples.filter((x) => x.t * 1000 >= warm && x.t <= seconds / 2);
+  const settled = firstHalf.length ? Math.min(...firstHalf.map((x) => x.rss)) : base.rss;
+  const growthSettled = ((last.rss - settled) / settled) * 100;
   const walMax = Math.max(...samples.map((s) => s.wal));
   const rssMax = Math.max(...samples.map((s) => s.rss));
   const mb = (b: number) => b / 1024 / 1024;
-  log(`soak ${seconds}s, 3 devices every second: ${syncs} syncs, ${failures} failures; RSS ${mb(base.rss).toFixed(1)} → ${mb(last.rss).toFixed(1)} MiB (max ${mb(rssMax).toFixed(1)}; ${growth.toFixed(1)}%); WAL max ${mb(walMax).toFixed(2)} MiB, last ${mb(last.wal).toFixed(2)} MiB`);
+  log(`soak ${seconds}s, 3 devices every second: ${syncs} syncs, ${failures} failures; RSS ${mb(base.rss).toFixed(1)} → ${mb(last.rss).toFixed(1)} MiB (max ${mb(rssMax).toFixed(1)}; ${growth.toFixed(1)}%; against the first half's lowest, ${mb(settled).toFixed(1)} MiB: ${growthSettled.toFixed(1)}%); WAL max ${mb(walMax).toFixed(2)} MiB, last ${mb(last.wal).toFixed(2)} MiB`);
   const full = seconds >= 600;
   return [
     { name: `soak ${seconds}s syncs`, value: syncs, unit: 'count' },
     { name: `soak ${seconds}s failures`, value: failures, unit: 'count', ...(full ? { target: '0' } : {}) },
     { name: `soak ${seconds}s RSS growth`, value: growth, unit: '%', ...(full ? { target: '< 20' } : {}) },
+    { name: `soak ${seconds}s RSS growth from the first half's lowest`, value: growthSettled, unit: '%', ...(full ? { target: '< 20' } : {}) },
     { name: `soak ${seconds}s RSS at end`, value: mb(last.rss), unit: 'MiB' },
     { name: `soak ${seconds}s WAL max`, value: mb(walMax), unit: 'MiB' },
     { name: `soak ${seconds}s WAL at end`, value: mb(last.wal), unit: 'MiB' },
@@ -206,7 +260,8 @@ function arg(name: string, fallback: number): number {
 }
 
 if (process.argv[1] && /bench\/load\.ts$/.test(process.argv[1])) {
-  runLoad({ seconds: arg('seconds', 30), connections: arg('connections', 50), soakSeconds: arg('soak', 600) })
+  const sweep = process.argv.includes('--no-sweep') ? [] : [5, 10, 20, 30, 40];
+  runLoad({ seconds: arg('seconds', 30), connections: arg('connections', 50), soakSeconds: arg('soak', 600), sweep, sweepSeconds: arg('sweep-seconds', 10) })
     .then((r) => {
       for (const row of r) console.log(`${row.name.padEnd(40)} ${row.value.toFixed(2).padStart(12)} ${row.unit.padEnd(6)} ${row.target ?? ''}`);
       process.exit(0);

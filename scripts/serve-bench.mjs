@@ -66,7 +66,9 @@ export async function startServer({ port = 3937 } = {}) {
   const dataDir = mkdtempSync(path.join(tmpdir(), 'ebbcast-bench-'));
   const dbFile = path.join(dataDir, 'bench.sqlite');
   const url = `http://127.0.0.1:${port}`;
-  const child = spawn(process.execPath, [next, 'start', '-p', String(port), '-H', '127.0.0.1'], {
+  // EBBCAST_BENCH_CPU_PROF=<folder>: the server writes a V8 CPU profile there when it stops (where the time goes).
+  const prof = process.env.EBBCAST_BENCH_CPU_PROF ? ['--cpu-prof', `--cpu-prof-dir=${path.resolve(process.env.EBBCAST_BENCH_CPU_PROF)}`] : [];
+  const child = spawn(process.execPath, [...prof, next, 'start', '-p', String(port), '-H', '127.0.0.1'], {
     cwd: root,
     env: {
       ...process.env, NEXT_DIST_DIR: DIST, NEXTAUTH_URL: url, NEXTAUTH_SECRET: 'bench-secret-not-for-production-0123456789',
