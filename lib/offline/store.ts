@@ -42,7 +42,7 @@ export class DexieStore implements LocalStore {
 
   private tables() {
     const d = this.db;
-    return [d.outbreaks, d.teams, d.sites, d.tallies, d.scenarios, d.shadow, d.outbox, d.meta, d.rejected];
+    return [d.outbreaks, d.teams, d.sites, d.tallies, d.scenarios, d.shadow, d.outbox, d.meta, d.rejected, d.results];
   }
 
   tx<T>(fn: (tx: StoreTx) => Promise<T>): Promise<T> {
@@ -61,6 +61,7 @@ export class DexieStore implements LocalStore {
         getMeta: () => readMeta(d),
         setMeta: (p) => writeMeta(d, p),
         addRejected: async (r) => void (await d.rejected.put(r)),
+        recordAnswer: async (e, r, at) => void (await d.results.put({ mutationId: e.mutationId, at, entity: e.entity, entityId: e.entityId, op: e.op, result: r })),
       };
       return fn(tx);
     });

@@ -113,16 +113,11 @@ async function run(): Promise<SyncReport> {
     } else if (!(await adoptUser(who.user))) {
       report = { ok: false, error: 'refused', message: 'This device holds unsynced changes of another user; they sync when that user signs in.', pushed: { applied: 0, duplicate: 0, conflict: 0, rejected: 0 }, pulled: 0, results: [] };
     } else {
-      const before = new Map((await s.outboxFrom(0, 100_000)).map((e) => [e.mutationId, e]));
+      // The answers were kept with the outbox change (DexieStore.recordAnswer); keep the newest 300.
       report = await syncOnce(s, fetchTransport, { deviceLabel: deviceLabel() });
       if (report.results.length) {
-        const at = new Date().toISOString();
         const db = localDb();
         await db.transaction('rw', db.results, async () => {
-          await db.results.bulkPut(report.results.map((r) => {
-            const e = before.get(r.mutationId);
-            return { mutationId: r.mutationId, at, entity: e?.entity ?? '?', entityId: e?.entityId ?? '', op: e?.op ?? 'upsert', result: r };
-          }));
           const n = await db.results.count();
           if (n > 300) await db.results.orderBy('at').limit(n - 300).delete();
         });

@@ -60,6 +60,11 @@ export interface StoreTx {
   getMeta(): Promise<SyncMetaState>;
   setMeta(patch: Partial<SyncMetaState>): Promise<void>;
   addRejected(r: RejectedEntry): Promise<void>;
+  /**
+   * Keeps the server's answer to an outbox entry for the sync screen, in the transaction that takes
+   * the entry out of the outbox (so a tab closed right after a push loses neither).
+   */
+  recordAnswer(e: OutboxEntry, r: PushResult, at: string): Promise<void>;
 }
 
 export interface LocalStore {
@@ -149,12 +154,14 @@ export async function queueChange(
 /** Applies the answers of one push: each answered entry leaves the outbox in the same transaction. */
 export async function applyPushResults(store: LocalStore, batch: OutboxEntry[], results: PushResult[]): Promise<void> {
   const byId = new Map(results.map((r) => [r.mutationId, r]));
+  const at = new Date().toISOString();
   await store.tx(async (tx) => {
     const answered = batch.filter((e) => byId.has(e.mutationId));
     const done = new Set<number>();
     for (const e of answered) {
       const r = byId.get(e.mutationId)!;
       done.add(e.seq);
+      await tx.recordAnswer(e, r, at);
       const rec = (r.record ?? null) as LocalRecord | null;
       const stillPending = (await tx.pendingFor(e.entityId)).filter((p) => !done.has(p.seq));
       if (rec && rec.id !== e.entityId) await receive(tx, e.entity, rec, done);

@@ -3,7 +3,7 @@
  * lib/offline/store.ts. A transaction works on a copy and is committed at its end, so a failure
  * inside one leaves the store as it was, as IndexedDB does.
  */
-import type { PullEntity } from './protocol';
+import type { PullEntity, PushResult } from './protocol';
 import type { LocalRecord, LocalStore, OutboxEntry, RejectedEntry, StoreTx, SyncMetaState } from './engine';
 
 interface State {
@@ -12,6 +12,8 @@ interface State {
   outbox: Map<number, OutboxEntry>;
   meta: SyncMetaState;
   rejected: RejectedEntry[];
+  /** The last answer to each pushed mutation, by mutation id. */
+  answers: Map<string, PushResult>;
 }
 
 const clone = <T>(v: T): T => structuredClone(v);
@@ -26,6 +28,7 @@ function copy(s: State): State {
     outbox: new Map(s.outbox),
     meta: { ...s.meta },
     rejected: [...s.rejected],
+    answers: new Map(s.answers),
   };
 }
 
@@ -40,6 +43,7 @@ export class MemoryStore implements LocalStore {
       outbox: new Map(),
       meta: { deviceId, seq: 0, cursor: 0, lastSyncAt: null, userId, registeredFor: null },
       rejected: [],
+      answers: new Map(),
     };
   }
 
@@ -59,6 +63,7 @@ export class MemoryStore implements LocalStore {
         getMeta: async () => ({ ...s.meta }),
         setMeta: async (p) => void Object.assign(s.meta, p),
         addRejected: async (r) => void s.rejected.push(clone(r)),
+        recordAnswer: async (e, r) => void s.answers.set(e.mutationId, clone(r)),
       };
       const out = await fn(tx);
       this.state = s;

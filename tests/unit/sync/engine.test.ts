@@ -50,6 +50,21 @@ describe('answers', () => {
     expect(s.state.records.tally.has('mine')).toBe(false);
     expect(s.state.records.tally.get('theirs')!.newCases).toBe(5);
     expect(await s.outboxCount()).toBe(0);
+    // The answer is kept for the sync screen in the same transaction that emptied the outbox.
+    expect(s.state.answers.get(e.mutationId)).toMatchObject({ fate: 'conflict', conflictId: 'c1' });
+  });
+
+  it('keeps no answer when the transaction that applies the answers fails, and the entry stays in the outbox', async () => {
+    const s = await store();
+    const e = await queueChange(s, { entity: 'tally', op: 'upsert', record: T({ id: 'y', newCases: 3 }), payload: {}, userId: 'user', newId: ids });
+    const tx = s.tx.bind(s);
+    s.tx = (fn) => tx(async (t) => {
+      const out = await fn(t);
+      throw new Error(`storage failed after ${String(out)}`);
+    });
+    await expect(applyPushResults(s, [e], [{ mutationId: e.mutationId, fate: 'applied', record: T({ id: 'y', version: 1, changeSeq: 5, newCases: 3 }) }])).rejects.toThrow(/storage failed/);
+    expect(s.state.answers.size).toBe(0);
+    expect(await s.outboxCount()).toBe(1);
   });
 
   it('a refused create is removed locally but kept in the refused list with its values', async () => {
