@@ -116,8 +116,9 @@ export async function runLoad(opts: LoadOptions): Promise<BenchRow[]> {
     for (let i = 0; i < Math.max(opts.connections, ...(opts.sweep ?? [])); i++) devices.push(await benchDevice(server.url, cookie, i));
     const pushErrors: string[] = [];
     const push = async (connections: number, duration: number) => {
-      // A run that stops mid-request may leave a push applied whose answer never came back:
-      // take each device's last accepted seq from the server before every run.
+      // A run that stops mid-request leaves pushes that the server still applies after autocannon
+      // has returned: let them land, then take each device's last accepted seq from the server.
+      await new Promise((r) => setTimeout(r, 3000));
       const listed = (await json(`${server.url}/api/devices`, cookie, 'GET')) as { devices: { id: string; highestSeq: number }[] };
       const highest = new Map(listed.devices.map((d) => [d.id, d.highestSeq]));
       for (const d of devices) d.seq = highest.get(d.deviceId) ?? d.seq;
@@ -129,8 +130,9 @@ export async function runLoad(opts: LoadOptions): Promise<BenchRow[]> {
           const d = devices[next++ % connections]!;
           client.setBody(pushBody(d));
           client.on('response', (status: number) => {
-            if (status === 200) d.seq++;
-            else if (pushErrors.length < 5) pushErrors.push(`status ${status} at seq ${d.seq + 1}`);
+            // A 409 means the seq was taken (an answer lost at the end of the previous run): move on.
+            if (status === 200 || status === 409) d.seq++;
+            if (status !== 200 && pushErrors.length < 5) pushErrors.push(`status ${status} at seq ${d.seq}`);
             client.setBody(pushBody(d));
           });
         },
