@@ -160,8 +160,9 @@ export function dialect(): 'sqlite' | 'postgres' {
 /**
  * Runs `fn` in a write transaction. On SQLite, writes are serialised by an in-process queue and
  * the transaction is IMMEDIATE: concurrent DEFERRED transactions through Sequelize + sqlite3 fail
- * with SQLITE_BUSY (SYNC.md, measured). On PostgreSQL the database's own transactions suffice.
- * A multi-process SQLite deployment is not supported: the lock is per process (see DEVELOPERS.md).
+ * with SQLITE_BUSY (SYNC.md, measured). On PostgreSQL an advisory lock orders write transactions
+ * across every app server (see below). A multi-process SQLite deployment is not supported: the
+ * SQLite lock is per process (see DEVELOPERS.md).
  *
  * Group commit (SQLite): the writes that queued while one transaction ran go together into the
  * next transaction, each in a savepoint of its own, and share its one commit (one fsync of the
@@ -174,7 +175,16 @@ export function dialect(): 'sqlite' | 'postgres' {
 export async function writeTx<T>(fn: (t: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await db();
   const s = state();
-  if (s.dialect !== 'sqlite') return sequelize.transaction(fn);
+  if (s.dialect !== 'sqlite') {
+    // PostgreSQL, maybe several app servers: write transactions take one advisory lock first, held
+    // to their end, so they commit in one order. The ledger's hash chain needs that (each row names
+    // the previous one; concurrent appends forked it, tests/integration/ledger-concurrency.test.ts),
+    // and taking it before any row lock cannot deadlock. Reads never wait for it.
+    return sequelize.transaction(async (t) => {
+      await sequelize.query('SELECT pg_advisory_xact_lock(:key)', { transaction: t, replacements: { key: PG_WRITE_LOCK } });
+      return fn(t);
+    });
+  }
   return new Promise<T>((resolve, reject) => {
     s.queue.push({ fn: fn as (t: Transaction) => Promise<unknown>, resolve: resolve as (v: unknown) => void, reject });
     if (!s.draining) s.lockTail = drain(s);
@@ -195,6 +205,9 @@ function isRefusal(err: unknown): boolean {
   if (e.name === 'AppError') return typeof e.status === 'number' && e.status < 500;
   return typeof e.name === 'string' && REFUSALS.has(e.name);
 }
+
+/** The advisory lock key of write transactions on PostgreSQL ("ebbc"). */
+const PG_WRITE_LOCK = 0x65626263;
 
 /** Most writes one commit carries; more wait for the next one. */
 const MAX_GROUP = 64;
