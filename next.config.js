@@ -63,7 +63,10 @@ const nextConfig = {
 };
 
 module.exports = (/** @type {string} */ phase) => {
-  if (phase !== PHASE_PRODUCTION_BUILD) return nextConfig;
+  // EBBCAST_NO_SW=1: a build without the service worker (the API load benchmark's). Serwist writes
+  // public/sw.js, which every build in this folder shares: a second build would replace the service
+  // worker of the build that the browser tests and page benchmarks serve.
+  if (phase !== PHASE_PRODUCTION_BUILD || process.env.EBBCAST_NO_SW === '1') return nextConfig;
   const withSerwist = require('@serwist/next').default({
     swSrc: 'workers/sw.ts',
     swDest: 'public/sw.js',

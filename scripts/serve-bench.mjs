@@ -32,7 +32,8 @@ export function ensureBuild({ quiet = false } = {}) {
   if (!quiet) process.stderr.write(`bench: building into ${DIST}…\n`);
   const r = spawnSync(process.execPath, [next, 'build', '--webpack'], {
     cwd: root,
-    env: { ...process.env, NEXT_DIST_DIR: DIST, NEXT_TELEMETRY_DISABLED: '1', BUILD_ID: `bench${Date.now()}` },
+    // No service worker: the load benchmark sends API requests only, and public/sw.js belongs to the e2e build.
+    env: { ...process.env, NEXT_DIST_DIR: DIST, NEXT_TELEMETRY_DISABLED: '1', BUILD_ID: `bench${Date.now()}`, EBBCAST_NO_SW: '1' },
     stdio: quiet ? 'ignore' : ['ignore', 'ignore', 'inherit'],
   });
   if (r.status !== 0) throw new Error(`next build failed (${r.status})`);
