@@ -17,7 +17,7 @@ interface DbState {
   dialect: 'sqlite' | 'postgres';
   ready: Promise<void>;
   /** Settles when the write queue is empty (SQLite only; closeDb waits for it). */
-  lockTail: Promise<unknown>;
+  idle: Promise<unknown>;
   /** Writes waiting for the lock (SQLite only). */
   queue: WriteJob[];
   draining: boolean;
@@ -26,7 +26,7 @@ interface DbState {
 
 /** Counts of the SQLite write queue since the connection opened (tests and benchmarks read them). */
 export interface WriteStats {
-  /** writeTx calls that ended (committed or refused). */
+  /** writeTx calls that ended (committed, refused or failed). */
   writes: number;
   /** Transactions committed or rolled back: fewer than `writes` when group commit joined some. */
   transactions: number;
@@ -67,7 +67,7 @@ function open(): DbState {
     sequelize,
     dialect: file ? 'sqlite' : 'postgres',
     ready: Promise.resolve(),
-    lockTail: Promise.resolve(),
+    idle: Promise.resolve(),
     queue: [],
     draining: false,
     stats: { writes: 0, transactions: 0, regrouped: 0 },
@@ -187,7 +187,7 @@ export async function writeTx<T>(fn: (t: Transaction) => Promise<T>): Promise<T>
   }
   return new Promise<T>((resolve, reject) => {
     s.queue.push({ fn: fn as (t: Transaction) => Promise<unknown>, resolve: resolve as (v: unknown) => void, reject });
-    if (!s.draining) s.lockTail = drain(s);
+    if (!s.draining) s.idle = drain(s);
   });
 }
 
@@ -272,7 +272,7 @@ export async function closeDb(): Promise<void> {
   g.__ebbcastDb = undefined;
   if (s) {
     await s.ready.catch(() => undefined);
-    await s.lockTail.catch(() => undefined);
+    await s.idle.catch(() => undefined);
     await s.sequelize.close();
   }
 }
