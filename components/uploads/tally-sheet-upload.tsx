@@ -15,12 +15,16 @@ export function TallySheetUpload({ siteId, date }: { siteId: string; date: strin
   const [queued, setQueued] = useState<QueuedSheet[]>([]);
   const [busy, setBusy] = useState(false);
   const [version, setVersion] = useState(0);
+  // The server's HTML has the input disabled: a file picked before the page is interactive would
+  // have no handler and be dropped without a word. It is enabled once this component has mounted.
+  const [ready, setReady] = useState(false);
 
   const refresh = useCallback(() => {
     listQueuedSheets({ siteId, date }).then(setQueued).catch(() => setQueued([]));
   }, [siteId, date]);
 
   useEffect(() => {
+    setReady(true);
     startUploadSync();
     refresh();
     return onUploadQueueChange(() => {
@@ -58,7 +62,7 @@ export function TallySheetUpload({ siteId, date }: { siteId: string; date: strin
     <div className="flex flex-col gap-2" data-testid="tally-sheet-upload">
       <label className="inline-flex min-h-touch cursor-pointer items-center gap-2 self-start rounded-lg border-2 border-ink/30 bg-white px-4 font-bold hover:border-accent">
         {busy ? 'Sending…' : 'Attach paper sheet (photo or PDF)'}
-        <input ref={input} type="file" accept="image/jpeg,image/png,application/pdf" className="sr-only" disabled={busy}
+        <input ref={input} type="file" accept="image/jpeg,image/png,application/pdf" className="sr-only" disabled={busy || !ready}
           onChange={(e) => void onFile(e.target.files?.[0])} />
       </label>
       <p className="text-sm text-ink/70">JPEG, PNG or PDF, at most 5 MB. Only aggregate counts: make sure the sheet shows no names.</p>

@@ -11,6 +11,8 @@ test.describe('tally-sheet uploads', () => {
     await page.goto(`/sheets?outbreak=${DEMO_OUTBREAK}`);
     const upload = page.getByTestId('tally-sheet-upload');
     const file = upload.locator('input[type=file]');
+    // Enabled once the page is interactive (a file set before that would meet no handler).
+    await expect(file).toBeEnabled();
 
     await file.setInputFiles({ name: 'sheet.png', mimeType: 'image/png', buffer: HTML });
     await expect(upload.getByRole('alert')).toContainText('This file is a web page or SVG although its name ends in .png, not a JPEG, PNG or PDF.');
