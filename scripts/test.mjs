@@ -28,7 +28,7 @@ function count(name) {
   const r = JSON.parse(readFileSync(report(name), 'utf8'));
   if (r.stats && 'expected' in r.stats) {
     // Playwright: "expected" includes tests marked test.fail that failed as declared.
-    return { passed: r.stats.expected + r.stats.flaky, failed: r.stats.unexpected, skipped: r.stats.skipped };
+    return { passed: r.stats.expected + r.stats.flaky, failed: r.stats.unexpected, skipped: r.stats.skipped, flaky: r.stats.flaky };
   }
   return { passed: r.numPassedTests, failed: r.numFailedTests, skipped: (r.numPendingTests ?? 0) + (r.numTodoTests ?? 0) };
 }
@@ -44,7 +44,8 @@ for (const [name, args, env, reportName] of steps) {
   const r = spawnSync(process.execPath, args, { cwd: root, stdio: 'inherit', env });
   const c = reportName ? count(reportName) : null;
   if (c) for (const k of Object.keys(total)) total[k] += c[k];
-  const counts = c ? ` (${c.passed} passed, ${c.failed} failed, ${c.skipped} skipped)` : '';
+  // "flaky": passed only when retried (Playwright retries once under CI).
+  const counts = c ? ` (${c.passed} passed, ${c.failed} failed, ${c.skipped} skipped${c.flaky ? `, of the passed ${c.flaky} flaky` : ''})` : '';
   console.log(`== ${name}: ${r.status === 0 ? 'ok' : 'FAILED'} in ${Math.round((Date.now() - t0) / 1000)} s${counts} ==`);
   if (r.status !== 0) {
     if (!c) total.failed += 1; // a step that failed without a report (types, a build) counts as one failure
