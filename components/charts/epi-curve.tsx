@@ -1,9 +1,9 @@
 'use client';
 import { useMemo } from 'react';
-import uPlot from 'uplot';
+import type uPlot from 'uplot';
 import { palette } from '@/tailwind.config';
 import type { EpiCurve } from '@/lib/tallies/curve';
-import { UplotChart } from './uplot-chart';
+import { UplotChart, type ChartOptions } from './uplot-chart';
 
 export interface EpiCurveChartProps {
   curve: EpiCurve;
@@ -28,12 +28,12 @@ export function EpiCurveChart({ curve, height = 300, scopeLabel }: EpiCurveChart
     curve.days.map((d) => d.cumulative),
   ], [curve]);
 
-  const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(() => {
+  const options = useMemo(() => (U: typeof uPlot): ChartOptions => {
     const cutoff = curve.cutoff ? toSec(curve.cutoff) : null;
     const unreported = curve.days.filter((d) => !d.reported).map((d) => toSec(d.date));
     const half = 43_200;
     return {
-      tzDate: (ts) => uPlot.tzDate(new Date(ts * 1000), 'Etc/UTC'),
+      tzDate: (ts) => U.tzDate(new Date(ts * 1000), 'Etc/UTC'),
       scales: { x: { time: true, range: (_u, min, max) => [min - half, max + half] }, cases: { range: (_u, _min, max) => [0, Math.max(1, max * 1.1)] }, cum: { range: (_u, _min, max) => [0, Math.max(1, max * 1.05)] } },
       axes: [
         { stroke: palette.ink, grid: { stroke: '#0001' } },
@@ -43,7 +43,7 @@ export function EpiCurveChart({ curve, height = 300, scopeLabel }: EpiCurveChart
       series: [
         { value: (_u, v) => (v == null ? '' : new Date(v * 1000).toISOString().slice(0, 10)) },
         { label: 'New cases', scale: 'cases', fill: `${palette.infectious}CC`, stroke: palette.infectious, width: 1,
-          paths: uPlot.paths.bars!({ size: [0.7, 40] }), points: { show: false } },
+          paths: U.paths.bars!({ size: [0.7, 40] }), points: { show: false } },
         { label: '7-day average', scale: 'cases', stroke: palette.ink, width: 2.5, dash: [8, 5], points: { show: false }, spanGaps: false },
         { label: 'Cumulative', scale: 'cum', stroke: palette.accent, width: 2.5, points: { show: false } },
       ],

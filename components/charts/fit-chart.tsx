@@ -1,8 +1,8 @@
 'use client';
 import { useMemo } from 'react';
-import uPlot from 'uplot';
+import type uPlot from 'uplot';
 import { palette } from '@/tailwind.config';
-import { UplotChart } from './uplot-chart';
+import { UplotChart, type ChartOptions } from './uplot-chart';
 import { dayAxis, daySeries, line, valueAxis } from './chart-theme';
 
 export interface FitChartProps {
@@ -16,29 +16,29 @@ export interface FitChartProps {
   startDate?: string | null;
 }
 
-const bars = () => uPlot.paths.bars!({ size: [0.7, 24] });
+const bars = (U: typeof uPlot) => U.paths.bars!({ size: [0.7, 24] });
 
 /** The observed tallies (bars) drawn over the fitted curve, and the residuals below on the same days. */
 export function FitChart({ trajectory, day, observed, residual, residualKind, startDate }: FitChartProps) {
-  const mainOptions = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
-    () => ({
+  const mainOptions = useMemo(
+    () => (U: typeof uPlot): ChartOptions => ({
       scales: { x: { time: false } },
       axes: [dayAxis(startDate), valueAxis('new cases per day')],
       series: [
         daySeries(startDate),
-        line('observed tallies', { stroke: palette.ink, width: 1 }, { fill: 'rgba(29, 36, 51, 0.28)', paths: bars() }),
+        line('observed tallies', { stroke: palette.ink, width: 1 }, { fill: 'rgba(29, 36, 51, 0.28)', paths: bars(U) }),
         line('fitted model', { stroke: palette.infectious, width: 3 }),
       ],
     }),
     [startDate],
   );
-  const resOptions = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
-    () => ({
+  const resOptions = useMemo(
+    () => (U: typeof uPlot): ChartOptions => ({
       scales: { x: { time: false } },
       axes: [dayAxis(startDate), valueAxis(residualKind === 'pearson' ? 'residual (sd)' : 'residual (cases)')],
       series: [
         daySeries(startDate),
-        line('residual', { stroke: palette.removed, width: 1 }, { fill: 'rgba(74, 90, 156, 0.45)', paths: bars() }),
+        line('residual', { stroke: palette.removed, width: 1 }, { fill: 'rgba(74, 90, 156, 0.45)', paths: bars(U) }),
       ],
       legend: { show: false },
     }),

@@ -1,11 +1,17 @@
 'use client';
 import { useEffect, useRef } from 'react';
-import uPlot from 'uplot';
+import type uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 
+/** Chart options without width/height: the chart takes its container's width. */
+export type ChartOptions = Omit<uPlot.Options, 'width' | 'height'>;
+
 export interface UplotChartProps {
-  /** Options without width/height: the chart takes its container's width. */
-  options: Omit<uPlot.Options, 'width' | 'height'>;
+  /**
+   * The options, or a function of the uPlot module that makes them (for options that need uPlot's
+   * own helpers, such as `paths.bars` or `tzDate`: the module is loaded on demand, see below).
+   */
+  options: ChartOptions | ((lib: typeof uPlot) => ChartOptions);
   data: uPlot.AlignedData;
   /** CSS pixels. */
   height?: number;
@@ -15,6 +21,9 @@ export interface UplotChartProps {
   testId?: string;
 }
 
+/** uPlot (about 22 kB compressed) is fetched with the first chart, not with every chart page's first load. */
+const loadUplot = () => import('uplot').then((m) => m.default);
+
 /**
  * The one uPlot wrapper: creates the chart, resizes it with its container, updates data in place
  * when only the data change, and destroys it on unmount. Feature charts build `options` and `data`.
@@ -22,17 +31,26 @@ export interface UplotChartProps {
 export function UplotChart({ options, data, height = 320, label, className = '', testId }: UplotChartProps) {
   const box = useRef<HTMLDivElement>(null);
   const plot = useRef<uPlot | null>(null);
+  // The newest data, for a chart created after they arrived (uPlot still loading).
+  const latest = useRef(data);
 
   useEffect(() => {
     const el = box.current;
     if (!el) return;
-    const u = new uPlot({ ...options, width: Math.max(200, el.clientWidth), height }, data, el);
-    plot.current = u;
-    const ro = new ResizeObserver(() => u.setSize({ width: Math.max(200, el.clientWidth), height }));
-    ro.observe(el);
+    let gone = false;
+    let ro: ResizeObserver | null = null;
+    void loadUplot().then((UPlot) => {
+      if (gone) return;
+      const opts = typeof options === 'function' ? options(UPlot) : options;
+      const u = new UPlot({ ...opts, width: Math.max(200, el.clientWidth), height }, latest.current, el);
+      plot.current = u;
+      ro = new ResizeObserver(() => u.setSize({ width: Math.max(200, el.clientWidth), height }));
+      ro.observe(el);
+    });
     return () => {
-      ro.disconnect();
-      u.destroy();
+      gone = true;
+      ro?.disconnect();
+      plot.current?.destroy();
       plot.current = null;
     };
     // Options changes rebuild the chart; data changes are applied below without a rebuild.
@@ -40,6 +58,7 @@ export function UplotChart({ options, data, height = 320, label, className = '',
   }, [options, height]);
 
   useEffect(() => {
+    latest.current = data;
     plot.current?.setData(data);
   }, [data]);
 

@@ -1,8 +1,11 @@
 'use client';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { Notice } from '@/components/ui/notice';
-import { checkFile, flushUploads, listQueuedSheets, onUploadQueueChange, queueSheet, removeQueuedSheet, sendSheet, startUploadSync, type QueuedSheet } from '@/lib/offline/upload-queue';
+import type { QueuedSheet } from '@/lib/offline/upload-queue';
 import { TallySheetLink } from './tally-sheet-link';
+
+/** The upload queue and Dexie (about 30 kB compressed) are loaded with this component, not with the page. */
+const loadQueue = () => import('@/lib/offline/upload-queue');
 
 /**
  * Attach a photo or scan of the paper tally sheet to a site and day. Checked on the device first
@@ -16,27 +19,39 @@ export function TallySheetUpload({ siteId, date }: { siteId: string; date: strin
   const [busy, setBusy] = useState(false);
   const [version, setVersion] = useState(0);
   // The server's HTML has the input disabled: a file picked before the page is interactive would
-  // have no handler and be dropped without a word. It is enabled once this component has mounted.
+  // have no handler and be dropped without a word. It is enabled once this component has mounted
+  // and the queue's module has loaded.
   const [ready, setReady] = useState(false);
 
   const refresh = useCallback(() => {
-    listQueuedSheets({ siteId, date }).then(setQueued).catch(() => setQueued([]));
+    loadQueue().then((q) => q.listQueuedSheets({ siteId, date })).then(setQueued).catch(() => setQueued([]));
   }, [siteId, date]);
 
   useEffect(() => {
-    setReady(true);
-    startUploadSync();
-    refresh();
-    return onUploadQueueChange(() => {
+    let gone = false;
+    let off = () => {};
+    void loadQueue().then((q) => {
+      if (gone) return;
+      setReady(true);
+      q.startUploadSync();
       refresh();
-      setVersion((v) => v + 1);
+      const unsubscribe = q.onUploadQueueChange(() => {
+        refresh();
+        setVersion((v) => v + 1);
+      });
+      off = () => void unsubscribe();
     });
+    return () => {
+      gone = true;
+      off();
+    };
   }, [refresh]);
 
   async function onFile(file: File | undefined) {
     if (!file) return;
     setMessage(null);
-    const check = await checkFile(file);
+    const q = await loadQueue();
+    const check = await q.checkFile(file);
     if (!check.ok) {
       setMessage({ tone: 'error', text: check.message });
       if (input.current) input.current.value = '';
@@ -44,12 +59,12 @@ export function TallySheetUpload({ siteId, date }: { siteId: string; date: strin
     }
     setBusy(true);
     const clientId = crypto.randomUUID();
-    const out = navigator.onLine ? await sendSheet({ clientId, siteId, date, name: file.name, blob: file }) : ({ ok: false, offline: true } as const);
+    const out = navigator.onLine ? await q.sendSheet({ clientId, siteId, date, name: file.name, blob: file }) : ({ ok: false, offline: true } as const);
     if (out.ok) {
       setMessage({ tone: 'success', text: 'Sheet attached.' });
       setVersion((v) => v + 1);
     } else if (out.offline) {
-      await queueSheet({ clientId, siteId, date, file });
+      await q.queueSheet({ clientId, siteId, date, file });
       setMessage({ tone: 'info', text: 'No connection: the sheet is kept on this device and sent when the network is back.' });
     } else {
       setMessage({ tone: 'error', text: out.message });
@@ -72,8 +87,8 @@ export function TallySheetUpload({ siteId, date }: { siteId: string; date: strin
           {queued.map((q) => (
             <li key={q.clientId} className="flex flex-wrap items-center gap-2">
               <span>{q.name} — {q.error ? <span className="font-bold text-warning">refused: {q.error}</span> : 'waiting to be sent'}</span>
-              {q.error ? <button type="button" className="min-h-touch text-accent underline" onClick={() => void removeQueuedSheet(q.clientId)}>Remove</button>
-                : <button type="button" className="min-h-touch text-accent underline" onClick={() => void flushUploads()}>Send now</button>}
+              {q.error ? <button type="button" className="min-h-touch text-accent underline" onClick={() => void loadQueue().then((m) => m.removeQueuedSheet(q.clientId))}>Remove</button>
+                : <button type="button" className="min-h-touch text-accent underline" onClick={() => void loadQueue().then((m) => m.flushUploads())}>Send now</button>}
             </li>
           ))}
         </ul>

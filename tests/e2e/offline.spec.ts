@@ -80,6 +80,8 @@ test.describe('offline first', () => {
     await page.goto(`/forecast?outbreak=${DEMO_OUTBREAK}`);
     await page.getByTestId('fit-run').click();
     await expect(page.getByTestId('fit-result')).toBeVisible({ timeout: 90_000 });
+    // uPlot is a chunk loaded with the first chart: offline it must come from the precache.
+    await expect(page.getByTestId('fit-chart').locator('canvas')).toBeVisible();
     await page.getByTestId('forecast-run').click();
     await expect(page.getByTestId('forecast-result')).toBeVisible({ timeout: 120_000 });
     await expect(page.getByTestId('fc-peak-day')).toContainText(/day \d+/);

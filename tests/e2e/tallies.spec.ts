@@ -18,7 +18,7 @@ test.describe('tallies', () => {
     await page.setViewportSize({ width: 800, height: 1280 });
     await signIn(page, 'field@marrowbend.example');
     await page.goto(`/tallies?outbreak=${DEMO_OUTBREAK}`);
-    await expect(page.getByTestId('epi-curve')).toBeVisible();
+    await expect(page.getByTestId('epi-curve').locator('canvas')).toBeVisible();
     await expect(page.getByTestId('epi-curve-total')).toContainText('cases in total');
     const before = await curveTotal(page);
     expect(before).toBeGreaterThan(0);
