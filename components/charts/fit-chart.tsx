@@ -17,12 +17,14 @@ export interface FitChartProps {
 }
 
 const bars = (U: typeof uPlot) => U.paths.bars!({ size: [0.7, 24] });
+/** Half a day of room at each end, so the first and last days' bars are drawn whole. */
+const dayScale = { time: false, range: (_u: uPlot, min: number, max: number): [number, number] => [min - 0.5, max + 0.5] };
 
 /** The observed tallies (bars) drawn over the fitted curve, and the residuals below on the same days. */
 export function FitChart({ trajectory, day, observed, residual, residualKind, startDate }: FitChartProps) {
   const mainOptions = useMemo(
     () => (U: typeof uPlot): ChartOptions => ({
-      scales: { x: { time: false } },
+      scales: { x: dayScale },
       axes: [dayAxis(startDate), valueAxis('new cases per day')],
       series: [
         daySeries(startDate),
@@ -34,7 +36,7 @@ export function FitChart({ trajectory, day, observed, residual, residualKind, st
   );
   const resOptions = useMemo(
     () => (U: typeof uPlot): ChartOptions => ({
-      scales: { x: { time: false } },
+      scales: { x: dayScale },
       axes: [dayAxis(startDate), valueAxis(residualKind === 'pearson' ? 'residual (sd)' : 'residual (cases)')],
       series: [
         daySeries(startDate),
@@ -61,7 +63,7 @@ export function FitChart({ trajectory, day, observed, residual, residualKind, st
   return (
     <div className="flex flex-col gap-1">
       <UplotChart options={mainOptions} data={mainData} height={280} testId="fit-chart" label="Observed daily tallies as bars with the fitted model as a line" />
-      <UplotChart options={resOptions} data={resData} height={130} testId="residual-chart" label="Residuals of the fit on each observed day" />
+      <UplotChart options={resOptions} data={resData} height={180} testId="residual-chart" label="Residuals of the fit on each observed day" />
     </div>
   );
 }

@@ -1,7 +1,7 @@
 'use client';
 import Link from 'next/link';
 import { usePathname } from 'next/navigation';
-import { Suspense, useState, type ReactNode } from 'react';
+import { Suspense, useEffect, useState, type ReactNode } from 'react';
 import { signOut } from 'next-auth/react';
 import { HOME, NAVIGATION, navHref } from '@/lib/auth/navigation';
 import { ROLE_LABEL } from '@/lib/auth/roles';
@@ -16,6 +16,12 @@ function OutbreakSwitcher() {
   const { outbreaks } = useOutbreaks();
   const current = useOutbreakId();
   const setOutbreak = useUiStore((s) => s.setOutbreak);
+  // Nothing chosen yet on this device: the first outbreak in view becomes the one in view, as the
+  // field home already shows it, so the header, the navigation's links and every screen agree.
+  const first = outbreaks[0]?.id;
+  useEffect(() => {
+    if (!current && first) setOutbreak(first);
+  }, [current, first, setOutbreak]);
   if (!outbreaks.length) return null;
   return (
     <label className="flex items-center gap-2 text-sm">
@@ -135,7 +141,7 @@ function Nav() {
   if (!me) return null;
   return (
     <nav aria-label="Main" className="no-print border-b border-line bg-panel">
-      <ul className="mx-auto flex max-w-6xl gap-1 overflow-x-auto px-2">
+      <ul className="mx-auto flex max-w-6xl flex-wrap gap-x-1 px-2">
         {NAVIGATION[me.role].map((n) => {
           const active = pathname === n.href;
           return (

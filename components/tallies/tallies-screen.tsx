@@ -57,14 +57,14 @@ export function TalliesScreen() {
         {curve ? <EpiCurveChart curve={curve} scopeLabel={sites.find((s) => s.id === curveSite)?.name ?? 'all sites'} /> : <p>Loading the curve…</p>}
       </Card>
 
-      <div role="tablist" aria-label="Views" className="flex flex-wrap gap-2">
+      {views.filter((v) => v.show).length > 1 && <div role="tablist" aria-label="Views" className="flex flex-wrap gap-2">
         {views.filter((v) => v.show).map((v) => (
           <button key={v.key} role="tab" type="button" aria-selected={view === v.key} onClick={() => setView(v.key)}
             className={`min-h-touch rounded-lg border-2 px-4 font-bold ${view === v.key ? 'border-accent bg-accent text-white' : 'border-line bg-panel'}`}>
             {v.label}
           </button>
         ))}
-      </div>
+      </div>}
 
       {view === 'table' && (
         <Card title={`Tallies (${total.toLocaleString()})`} actions={

@@ -18,7 +18,9 @@ export interface TallyTableProps {
   startDate: string;
 }
 
-const COLUMNS: { key: string | null; label: string; numeric?: boolean }[] = [
+// `wide`: shown from 1024 px up; on a portrait tablet the row's Edit button matters more than who
+// recorded it and when (that stays on the ledger and in landscape).
+const COLUMNS: { key: string | null; label: string; numeric?: boolean; wide?: boolean }[] = [
   { key: 'date', label: 'Day' },
   { key: 'site', label: 'Site' },
   { key: 'newCases', label: 'New cases', numeric: true },
@@ -26,11 +28,11 @@ const COLUMNS: { key: string | null; label: string; numeric?: boolean }[] = [
   { key: null, label: 'Deaths', numeric: true },
   { key: null, label: 'Admissions', numeric: true },
   { key: null, label: 'Note' },
-  { key: 'recordedAt', label: 'Recorded' },
+  { key: 'recordedAt', label: 'Recorded', wide: true },
   { key: null, label: '' },
 ];
 
-const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' }) : '—');
+const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit' }) : '—');
 const opt = (n: number | null) => (n == null ? '—' : n.toLocaleString());
 const CELL = 'num w-20 rounded border-2 border-ink/30 bg-white px-2 py-1 text-right aria-[invalid=true]:border-warning';
 
@@ -103,7 +105,7 @@ export function TallyTable({ rows, sites, people, me, sort, onSort, startDate }:
             <tr className="border-b-2 border-ink/40">
               {COLUMNS.map((c, i) => (
                 <th key={i} scope="col" aria-sort={c.key && sort.replace('-', '') === c.key ? (sort.startsWith('-') ? 'descending' : 'ascending') : undefined}
-                  className={`px-2 ${c.numeric ? 'text-right' : ''}`}>
+                  className={`px-2 ${c.numeric ? 'text-right' : ''} ${c.wide ? 'hidden lg:table-cell' : ''}`}>
                   {c.key ? sortButton(c.key, c.label) : c.label}
                 </th>
               ))}
@@ -122,7 +124,7 @@ export function TallyTable({ rows, sites, people, me, sort, onSort, startDate }:
                   <td className="num px-2 text-right">{isEditing ? field('deaths', 'Deaths') : opt(t.deaths)}</td>
                   <td className="num px-2 text-right">{isEditing ? field('admissions', 'Admissions') : opt(t.admissions)}</td>
                   <td className="max-w-48 truncate px-2" title={t.note ?? undefined}>{isEditing ? field('note', 'Note') : t.note ?? ''}</td>
-                  <td className="px-2 text-sm">
+                  <td className="hidden px-2 text-sm lg:table-cell">
                     {people[t.recordedBy ?? ''] ?? '—'}<br /><span className="text-ink/70">{when(t.recordedAt)}</span>
                     {t.version > 1 && <><br /><span className="text-ink/70">edited by {people[t.updatedBy ?? ''] ?? '—'} (v{t.version})</span></>}
                   </td>

@@ -17,6 +17,13 @@ type SP = Promise<Record<string, string | string[] | undefined>>;
 const PAGE = 200;
 
 const KINDS = ['push', 'pull', 'conflict', 'settlement', 'sign_in', 'device.register', 'tally_import', 'forecast.publish'];
+/** Words for the screen; the filter's values and the CSV export keep the stored kinds. */
+const KIND_LABEL: Record<string, string> = {
+  push: 'Push', pull: 'Pull', conflict: 'Conflict', settlement: 'Settlement', sign_in: 'Sign-in',
+  'device.register': 'Device registered', tally_import: 'CSV import', 'forecast.publish': 'Forecast published',
+};
+/** Rendered on the server: one clock for every reader, said in the column's heading. */
+const utc = (iso: string) => new Date(iso).toISOString().slice(0, 19).replace('T', ' ');
 
 function countsText(c: Record<string, number> | null, kind: string): string {
   if (!c) return '';
@@ -86,7 +93,7 @@ export default async function LedgerPage({ searchParams }: { searchParams: SP })
         <label className="flex flex-col text-sm font-bold">Kind
           <select name="kind" defaultValue={raw.kind ?? ''} className={select}>
             <option value="">Any</option>
-            {KINDS.map((k) => <option key={k} value={k}>{k}</option>)}
+            {KINDS.map((k) => <option key={k} value={k}>{KIND_LABEL[k]}</option>)}
           </select>
         </label>
         <label className="flex flex-col text-sm font-bold">From
@@ -109,7 +116,7 @@ export default async function LedgerPage({ searchParams }: { searchParams: SP })
         <table className="w-full text-left text-sm" data-testid="ledger-table">
           <thead>
             <tr className="border-b-2 border-line">
-              <th className="py-1 pr-2">#</th><th className="pr-2">When</th><th className="pr-2">What</th><th className="pr-2">User</th>
+              <th className="py-1 pr-2">#</th><th className="pr-2">When (UTC)</th><th className="pr-2">What</th><th className="pr-2">User</th>
               <th className="pr-2">Device</th><th className="pr-2">Outbreak</th><th className="pr-2">Counts</th><th className="pr-2">ms</th><th>Detail</th>
             </tr>
           </thead>
@@ -117,8 +124,8 @@ export default async function LedgerPage({ searchParams }: { searchParams: SP })
             {rows.map((r) => (
               <tr key={r.id} className="border-b border-line/60 align-top" data-kind={r.kind}>
                 <td className="py-1 pr-2">{r.id}</td>
-                <td className="whitespace-nowrap pr-2">{new Date(r.at).toLocaleString()}</td>
-                <td className="pr-2 font-bold">{r.kind}</td>
+                <td className="num whitespace-nowrap pr-2">{utc(r.at)}</td>
+                <td className="pr-2 font-bold">{KIND_LABEL[r.kind] ?? r.kind}</td>
                 <td className="pr-2">{r.userId ? (names.users[r.userId] ?? r.userId.slice(0, 8)) : '—'}</td>
                 <td className="pr-2">{r.deviceId ? (names.devices[r.deviceId] ?? r.deviceId.slice(0, 8)) : '—'}</td>
                 <td className="pr-2">{r.outbreakId ? (outbreakName[r.outbreakId] ?? r.outbreakId.slice(0, 8)) : '—'}</td>
