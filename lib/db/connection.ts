@@ -84,8 +84,17 @@ const PRAGMAS = 'PRAGMA journal_mode=WAL; PRAGMA synchronous=FULL; PRAGMA foreig
 const WRITER = 'writer';
 
 /**
+ * Queries outside a transaction (the reads) take turns on this many connections. Sequelize runs
+ * them all on one, and one SQLite connection runs one statement at a time: concurrent requests
+ * queued behind each other's SELECTs while sqlite3's other worker threads stood idle. In WAL mode
+ * readers do not block each other or the writer. Three readers and the writer fit sqlite3's share
+ * of libuv's default four threads. EBBCAST_SQLITE_READERS overrides (1 restores one connection).
+ */
+const READERS = Math.max(1, Math.min(8, Number(process.env.EBBCAST_SQLITE_READERS) || 3));
+
+/**
  * Sequelize opens a new sqlite3 connection for every transaction, and closes it after; it runs no
- * connect hooks for SQLite. Writes are serialised here (writeTx), so every transaction runs on one
+ * connect hooks for SQLite; and it runs every other query on one connection. Writes are serialised here (writeTx), so every transaction runs on one
  * kept writer connection instead (opening a connection, its pragmas and the schema parse cost
  * more than a small push). The settings a connection needs (WAL, full fsync, foreign keys, busy
  * timeout) are applied once per new connection, before its first query.
@@ -101,9 +110,11 @@ function configureSqliteConnections(sequelize: Sequelize) {
   const original = cm.getConnection.bind(cm);
   const release = cm.releaseConnection.bind(cm);
   const configured = new WeakSet<sqlite3.Database>();
+  let turn = 0;
   cm.getConnection = async (options) => {
     const transaction = Boolean(options?.uuid && options.uuid !== 'default');
-    const conn = await original(transaction ? { ...options, uuid: WRITER } : options);
+    const key = transaction ? WRITER : READERS === 1 ? 'default' : `reader-${turn++ % READERS}`;
+    const conn = await original({ ...options, uuid: key });
     if (!configured.has(conn)) {
       configured.add(conn);
       await new Promise<void>((resolve, reject) => conn.exec(PRAGMAS, (err) => (err ? reject(err) : resolve())));
