@@ -1,5 +1,5 @@
 'use client';
-import { useEffect, useRef } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 
@@ -33,6 +33,7 @@ export function UplotChart({ options, data, height = 320, label, className = '',
   const plot = useRef<uPlot | null>(null);
   // The newest data, for a chart created after they arrived (uPlot still loading).
   const latest = useRef(data);
+  const [failed, setFailed] = useState(false);
 
   useEffect(() => {
     const el = box.current;
@@ -46,6 +47,8 @@ export function UplotChart({ options, data, height = 320, label, className = '',
       plot.current = u;
       ro = new ResizeObserver(() => u.setSize({ width: Math.max(200, el.clientWidth), height }));
       ro.observe(el);
+    }).catch(() => {
+      if (!gone) setFailed(true);
     });
     return () => {
       gone = true;
@@ -62,5 +65,9 @@ export function UplotChart({ options, data, height = 320, label, className = '',
     plot.current?.setData(data);
   }, [data]);
 
-  return <div ref={box} role="img" aria-label={label} data-testid={testId} className={`w-full ${className}`} />;
+  return (
+    <div ref={box} role="img" aria-label={label} data-testid={testId} className={`w-full ${className}`}>
+      {failed && <p className="p-4 text-sm text-warning">The chart could not load: open this page once with a network, then it draws offline too.</p>}
+    </div>
+  );
 }
