@@ -4,6 +4,7 @@ import type uPlot from 'uplot';
 import { palette } from '@/tailwind.config';
 import type { EpiCurve } from '@/lib/tallies/curve';
 import { UplotChart, type ChartOptions } from './uplot-chart';
+import { dayToShortDate } from './chart-theme';
 
 export interface EpiCurveChartProps {
   curve: EpiCurve;
@@ -14,6 +15,7 @@ export interface EpiCurveChartProps {
 }
 
 const toSec = (day: string) => Date.parse(`${day}T00:00:00Z`) / 1000;
+const EPOCH = '1970-01-01';
 
 /**
  * Daily incidence as bars, the 7-day average as a dashed line and cumulative cases (second axis)
@@ -36,12 +38,13 @@ export function EpiCurveChart({ curve, height = 300, scopeLabel }: EpiCurveChart
       tzDate: (ts) => U.tzDate(new Date(ts * 1000), 'Etc/UTC'),
       scales: { x: { time: true, range: (_u, min, max) => [min - half, max + half] }, cases: { range: (_u, _min, max) => [0, Math.max(1, max * 1.1)] }, cum: { range: (_u, _min, max) => [0, Math.max(1, max * 1.05)] } },
       axes: [
-        { stroke: palette.ink, grid: { stroke: '#0001' } },
+        // "8 Nov", as on the other charts and in the tables (uPlot's default is "11/8").
+        { stroke: palette.ink, grid: { stroke: '#0001' }, values: (_u, splits) => splits.map((s) => dayToShortDate(EPOCH, s / 86_400) ?? '') },
         { scale: 'cases', label: 'New cases per day', stroke: palette.ink, grid: { stroke: '#0001' }, size: 56 },
         { scale: 'cum', side: 1, label: 'Cumulative cases', stroke: palette.accent, grid: { show: false }, size: 64 },
       ],
       series: [
-        { value: (_u, v) => (v == null ? '' : new Date(v * 1000).toISOString().slice(0, 10)) },
+        { label: 'Day', value: (_u, v) => (v == null ? '' : new Date(v * 1000).toISOString().slice(0, 10)) },
         { label: 'New cases', scale: 'cases', fill: `${palette.infectious}CC`, stroke: palette.infectious, width: 1,
           paths: U.paths.bars!({ size: [0.7, 40] }), points: { show: false } },
         { label: '7-day average', scale: 'cases', stroke: palette.ink, width: 2.5, dash: [8, 5], points: { show: false }, spanGaps: false },
