@@ -5,7 +5,7 @@ import { User, TeamMembership, OutbreakMember } from '@/models';
 import type { Actor } from '@/lib/auth/actor';
 import type { UserRecord } from '@/lib/types/records';
 import type { UserCreateInput, UserUpdateInput } from '@/lib/validation/user';
-import { AppError, notFound } from '@/lib/http/errors';
+import { AppError, conflict, notFound } from '@/lib/http/errors';
 import { db, writeTx } from './connection';
 
 /** bcrypt cost: about 60 ms per hash here; enough to slow guessing, cheap for a sign-in. */
@@ -103,6 +103,13 @@ export async function updateUser(id: string, input: UserUpdateInput): Promise<Us
   await writeTx(async (t) => {
     const u = await User.findByPk(id, { transaction: t });
     if (!u) throw notFound('User');
+    // The last active administrator may not be deactivated or given another role: nobody could then
+    // manage users again (short of editing the database). Checked inside the write, so two admins
+    // demoting each other at once cannot both succeed.
+    const leavesAdmin = u.role === 'admin' && u.active && ((input.role !== undefined && input.role !== 'admin') || input.active === false);
+    if (leavesAdmin && (await User.count({ where: { role: 'admin', active: true, id: { [Op.ne]: id } }, transaction: t })) === 0) {
+      throw conflict('Ebbcast needs at least one active administrator: make another user an administrator before changing this one.');
+    }
     const scopeChanged = input.role !== undefined || input.active !== undefined || input.teamIds || input.outbreakIds;
     await u.update(
       { ...(input.name ? { name: input.name } : {}), ...(input.role ? { role: input.role } : {}),
