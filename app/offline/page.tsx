@@ -10,7 +10,7 @@ export default function OfflinePage() {
         field screens keep working on this device:
       </p>
       <ul className="flex flex-col gap-2">
-        {[['/field', 'Field home'], ['/entry', 'Record tallies'], ['/tallies', 'Tallies & curve'], ['/scenarios', 'Scenarios'], ['/sync', 'Sync']].map(([href, label]) => (
+        {[['/field', 'Field home'], ['/entry', 'Record tallies'], ['/tallies', 'Tallies & curve'], ['/scenarios', 'Scenarios'], ['/forecast', 'Forecast'], ['/overview', 'Outbreak overview'], ['/sync', 'Sync']].map(([href, label]) => (
           <li key={href}>
             <Link href={href!} className="inline-flex min-h-touch items-center font-bold text-accent">{label}</Link>
           </li>

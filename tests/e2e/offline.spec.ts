@@ -204,6 +204,10 @@ test.describe('offline first', () => {
     await page.goto('/merge');
     await expect(page.getByRole('heading', { name: 'This page needs a network' })).toBeVisible();
     await page.screenshot({ path: '/tmp/offline-desk-fallback.png', fullPage: true });
+    // It leads to every field screen, the forecast among them.
+    await page.getByRole('link', { name: 'Forecast' }).click();
+    await expect(page).toHaveURL(/\/forecast/);
+    await expect(page.getByTestId('online-state')).toHaveText('Offline');
     await context.setOffline(false);
     await context.close();
   });
