@@ -16,12 +16,12 @@ export const dynamic = 'force-dynamic';
 type SP = Promise<Record<string, string | string[] | undefined>>;
 const PAGE = 200;
 
-const KINDS = ['push', 'pull', 'conflict', 'settlement', 'sign_in', 'device.register', 'tally_import', 'forecast.publish'];
-/** Words for the screen; the filter's values and the CSV export keep the stored kinds. */
+/** The stored kinds, with words for the screen (the filter's values and the CSV export keep the kinds). */
 const KIND_LABEL: Record<string, string> = {
   push: 'Push', pull: 'Pull', conflict: 'Conflict', settlement: 'Settlement', sign_in: 'Sign-in',
   'device.register': 'Device registered', tally_import: 'CSV import', 'forecast.publish': 'Forecast published',
 };
+const KINDS = Object.keys(KIND_LABEL);
 /** Rendered on the server: one clock for every reader, said in the column's heading. */
 const utc = (iso: string) => new Date(iso).toISOString().slice(0, 19).replace('T', ' ');
 
