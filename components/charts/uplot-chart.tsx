@@ -47,7 +47,8 @@ export function UplotChart({ options, data, height = 320, label, className = '',
       plot.current = u;
       ro = new ResizeObserver(() => u.setSize({ width: Math.max(200, el.clientWidth), height }));
       ro.observe(el);
-    }).catch(() => {
+    }, () => {
+      // Only the module's load: an error in drawing is not "could not load".
       if (!gone) setFailed(true);
     });
     return () => {

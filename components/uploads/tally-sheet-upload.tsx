@@ -40,7 +40,7 @@ export function TallySheetUpload({ siteId, date }: { siteId: string; date: strin
         setVersion((v) => v + 1);
       });
       off = () => void unsubscribe();
-    }).catch(() => {
+    }, () => {
       // The form's code did not arrive (offline before it was ever cached): say so rather than stay greyed out.
       if (!gone) setMessage({ tone: 'error', text: 'The upload form could not load. Open this page once with a network, then it works offline too.' });
     });
