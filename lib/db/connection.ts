@@ -94,8 +94,9 @@ const READERS = Math.max(1, Math.min(8, Number(process.env.EBBCAST_SQLITE_READER
 
 /**
  * Sequelize opens a new sqlite3 connection for every transaction, and closes it after; it runs no
- * connect hooks for SQLite; and it runs every other query on one connection. Writes are serialised here (writeTx), so every transaction runs on one
- * kept writer connection instead (opening a connection, its pragmas and the schema parse cost
+ * connect hooks for SQLite; and it runs every other query on one connection (READERS above).
+ * Writes are serialised here (writeTx), so every transaction runs on one kept writer connection
+ * instead (opening a connection, its pragmas and the schema parse cost
  * more than a small push). The settings a connection needs (WAL, full fsync, foreign keys, busy
  * timeout) are applied once per new connection, before its first query.
  */
