@@ -19,7 +19,7 @@ export interface TallyTableProps {
 }
 
 // `wide`: shown from 1024 px up; on a portrait tablet the row's Edit button matters more than who
-// recorded it and when (that stays on the ledger and in landscape).
+// recorded it and when (shown in landscape, from 1024 px).
 const COLUMNS: { key: string | null; label: string; numeric?: boolean; wide?: boolean }[] = [
   { key: 'date', label: 'Day' },
   { key: 'site', label: 'Site' },
