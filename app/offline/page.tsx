@@ -1,4 +1,8 @@
 import Link from 'next/link';
+import { NAVIGATION } from '@/lib/auth/navigation';
+
+/** Every screen some role's navigation marks as working offline, once each, field officers' first. */
+const OFFLINE_SCREENS = [...new Map(Object.values(NAVIGATION).flat().filter((n) => n.offline).map((n) => [n.href, n])).values()];
 
 /** Shown by the service worker for any page that needs the network and is not cached. */
 export default function OfflinePage() {
@@ -10,9 +14,9 @@ export default function OfflinePage() {
         field screens keep working on this device:
       </p>
       <ul className="flex flex-col gap-2">
-        {[['/field', 'Field home'], ['/entry', 'Record tallies'], ['/tallies', 'Tallies & curve'], ['/scenarios', 'Scenarios'], ['/forecast', 'Forecast'], ['/overview', 'Outbreak overview'], ['/sync', 'Sync']].map(([href, label]) => (
+        {OFFLINE_SCREENS.map(({ href, label }) => (
           <li key={href}>
-            <Link href={href!} className="inline-flex min-h-touch items-center font-bold text-accent">{label}</Link>
+            <Link href={href} className="inline-flex min-h-touch items-center font-bold text-accent">{href === '/field' ? 'Field home' : label}</Link>
           </li>
         ))}
       </ul>

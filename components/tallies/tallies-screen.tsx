@@ -47,6 +47,7 @@ export function TalliesScreen() {
     { key: 'grid', label: 'Site-by-day grid', show: showGrid },
     { key: 'import', label: 'Import CSV', show: canImport },
   ];
+  const shown = views.filter((v) => v.show);
 
   return (
     <div className="flex flex-col gap-4">
@@ -57,8 +58,8 @@ export function TalliesScreen() {
         {curve ? <EpiCurveChart curve={curve} scopeLabel={sites.find((s) => s.id === curveSite)?.name ?? 'all sites'} /> : <p>Loading the curve…</p>}
       </Card>
 
-      {views.filter((v) => v.show).length > 1 && <div role="tablist" aria-label="Views" className="flex flex-wrap gap-2">
-        {views.filter((v) => v.show).map((v) => (
+      {shown.length > 1 && <div role="tablist" aria-label="Views" className="flex flex-wrap gap-2">
+        {shown.map((v) => (
           <button key={v.key} role="tab" type="button" aria-selected={view === v.key} onClick={() => setView(v.key)}
             className={`min-h-touch rounded-lg border-2 px-4 font-bold ${view === v.key ? 'border-accent bg-accent text-white' : 'border-line bg-panel'}`}>
             {v.label}
